@@ -1,0 +1,32 @@
+"""statewright: state-space realizations, transfer-function recovery and structure of
+linear time-invariant models, with a Rust core.
+
+>>> import statewright as sw
+>>> r = sw.realize([1, 3], [1, 3, 2], "observable_canonical")
+>>> r.n_states
+2
+"""
+
+from ._core import ModelError
+from ._objects import Realization
+from ._api import (
+    characteristic_polynomial,
+    controllability_matrix,
+    faddeev_leverrier,
+    observability_matrix,
+    realize,
+    transfer_function,
+)
+
+__version__ = "0.1.0"
+
+__all__ = [
+    "ModelError",
+    "Realization",
+    "realize",
+    "faddeev_leverrier",
+    "characteristic_polynomial",
+    "transfer_function",
+    "controllability_matrix",
+    "observability_matrix",
+]

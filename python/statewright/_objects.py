@@ -1,0 +1,268 @@
+"""Result objects: :class:`Realization`, with notebook display and pickling."""
+
+from __future__ import annotations
+
+import types
+from fractions import Fraction
+from typing import Any, Iterator, Mapping, Optional, Tuple, Union
+
+import numpy as np
+
+from . import _validate as v
+from ._core import ModelError
+
+__all__ = ["Realization"]
+
+_LATEX_MAX = 12  # rows and columns shown before eliding, as notebooks get unreadable past that
+
+
+def _is_exact(x: Any) -> bool:
+    return isinstance(x, np.ndarray) and x.dtype == object
+
+
+def _holds_fraction(x: Any) -> bool:
+    if isinstance(x, np.ndarray) and x.dtype != object:
+        return False
+    try:
+        flat = np.array(x, dtype=object).reshape(-1)
+    except Exception:
+        return False
+    return any(isinstance(e, Fraction) for e in flat)
+
+
+def _frozen(x: np.ndarray) -> np.ndarray:
+    x.flags.writeable = False
+    return x
+
+
+def _latex_entry(x: Any) -> str:
+    if isinstance(x, Fraction):
+        if x.denominator == 1:
+            return str(x.numerator)
+        sign = "-" if x < 0 else ""
+        return rf"{sign}\frac{{{abs(x.numerator)}}}{{{x.denominator}}}"
+    value = float(x)
+    if value == 0.0:
+        return "0"
+    text = f"{value:.6g}"
+    if "e" in text:
+        mant, exp = text.split("e")
+        return rf"{mant} \cdot 10^{{{int(exp)}}}"
+    return text
+
+
+def latex_matrix(m: np.ndarray) -> str:
+    """A bmatrix, elided past ``_LATEX_MAX`` rows or columns."""
+    rows, cols = m.shape
+    if rows == 0 or cols == 0:
+        return rf"[\,]_{{{rows}\times{cols}}}"
+    show_r, show_c = min(rows, _LATEX_MAX), min(cols, _LATEX_MAX)
+    lines = []
+    for i in range(show_r):
+        entries = [_latex_entry(m[i, j]) for j in range(show_c)]
+        if show_c < cols:
+            entries.append(r"\cdots")
+        lines.append(" & ".join(entries))
+    if show_r < rows:
+        lines.append(" & ".join([r"\vdots"] * (show_c + (show_c < cols))))
+    return r"\begin{bmatrix}" + r" \\ ".join(lines) + r"\end{bmatrix}"
+
+
+class Realization:
+    """A state-space model ``x' = A x + B u``, ``y = C x + D u`` (or its discrete-time twin).
+
+    A frozen container of four 2-D arrays: float64, or object arrays of
+    :class:`fractions.Fraction` for exact data. It unpacks like a tuple
+    (``A, B, C, D = r``); the arrays are read-only (copy them to edit).
+
+    Parameters
+    ----------
+    a, b, c, d : array_like
+        ``(n, n)``, ``(n, m)``, ``(p, n)`` and ``(p, m)`` arrays. Arrays holding
+        Fractions make an exact realization.
+    info : mapping, optional
+        Diagnostics from the computation that made the realization.
+
+    Raises
+    ------
+    ModelError
+        When the shapes do not fit together or an entry is not finite.
+    """
+
+    __slots__ = ("_a", "_b", "_c", "_d", "_info")
+
+    def __init__(self, a: Any, b: Any, c: Any, d: Any, info: Optional[Mapping[str, Any]] = None) -> None:
+        exact = any(_holds_fraction(x) for x in (a, b, c, d))
+        if exact:
+            arrays = [v.exact_matrix(x, name) for x, name in zip((a, b, c, d), "abcd")]
+        else:
+            arrays = [v.float_matrix(x, name) for x, name in zip((a, b, c, d), "abcd")]
+        v.check_model_shapes(*arrays)
+        self._a, self._b, self._c, self._d = (_frozen(x) for x in arrays)
+        self._info = types.MappingProxyType(dict(info or {}))
+
+    @classmethod
+    def _trusted(cls, a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray,
+                 info: Optional[Mapping[str, Any]] = None) -> "Realization":
+        """Wraps arrays fresh from the core (already checked) without another copy."""
+        self = cls.__new__(cls)
+        self._a, self._b, self._c, self._d = (_frozen(x) for x in (a, b, c, d))
+        self._info = types.MappingProxyType(dict(info or {}))
+        return self
+
+    # -- the four matrices -------------------------------------------------------------
+    @property
+    def a(self) -> np.ndarray:
+        """State matrix A, shape (n, n)."""
+        return self._a
+
+    @property
+    def b(self) -> np.ndarray:
+        """Input matrix B, shape (n, m)."""
+        return self._b
+
+    @property
+    def c(self) -> np.ndarray:
+        """Output matrix C, shape (p, n)."""
+        return self._c
+
+    @property
+    def d(self) -> np.ndarray:
+        """Direct feedthrough D, shape (p, m)."""
+        return self._d
+
+    @property
+    def info(self) -> Mapping[str, Any]:
+        """Read-only diagnostics of the computation that made this realization."""
+        return self._info
+
+    @property
+    def n_states(self) -> int:
+        return int(self._a.shape[0])
+
+    @property
+    def n_inputs(self) -> int:
+        return int(self._b.shape[1])
+
+    @property
+    def n_outputs(self) -> int:
+        return int(self._c.shape[0])
+
+    @property
+    def exact(self) -> bool:
+        """True when the matrices hold exact Fractions."""
+        return _is_exact(self._a) or _is_exact(self._d)
+
+    def __iter__(self) -> Iterator[np.ndarray]:
+        return iter((self._a, self._b, self._c, self._d))
+
+    def __len__(self) -> int:
+        return 4
+
+    def __getitem__(self, k: int) -> np.ndarray:
+        return (self._a, self._b, self._c, self._d)[k]
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Realization):
+            return NotImplemented
+        return all(x.shape == y.shape and bool(np.all(x == y)) for x, y in zip(self, other))
+
+    __hash__ = None  # type: ignore[assignment]
+
+    def __reduce__(self) -> Tuple[Any, ...]:
+        return (_rebuild, (np.array(self._a), np.array(self._b), np.array(self._c),
+                           np.array(self._d), dict(self._info)))
+
+    # -- analysis ----------------------------------------------------------------------
+    def _float(self) -> Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        return tuple(np.asarray(x, dtype=np.float64) for x in self)  # type: ignore[return-value]
+
+    def poles(self) -> np.ndarray:
+        """Eigenvalues of A (complex array, sorted by real part then imaginary part)."""
+        a = self._float()[0]
+        if a.shape[0] == 0:
+            return np.zeros(0, dtype=complex)
+        p = np.linalg.eigvals(a).astype(complex)
+        return p[np.lexsort((p.imag, p.real))]
+
+    def transfer_function(self, *, method: str = "auto") -> Tuple[np.ndarray, np.ndarray]:
+        """``(num, den)`` of ``C (sI - A)^-1 B + D``; exact for an exact realization.
+
+        See :func:`statewright.transfer_function` for the layout and accuracy.
+        """
+        from ._api import transfer_function
+
+        if self.exact:
+            return transfer_function(*self, exact=True)
+        return transfer_function(*self, method=method)  # type: ignore[return-value]
+
+    def evaluate(self, s: Union[complex, np.ndarray]) -> np.ndarray:
+        """The transfer matrix ``C (sI - A)^-1 B + D`` at s.
+
+        A complex (p, m) array for a scalar s, a (k, p, m) array for a 1-D array of k points.
+        """
+        a, b, c, d = self._float()
+        points = np.asarray(s, dtype=complex)
+        if points.ndim > 1:
+            raise ModelError(f"s: expected a scalar or a 1-D array of points, found shape {points.shape}")
+        if not np.all(np.isfinite(points)):
+            raise ModelError("s: contains NaN or infinity")
+        flat = points.reshape(-1)
+        n = a.shape[0]
+        out = np.broadcast_to(d.astype(complex), (flat.size,) + d.shape).copy()
+        if n:
+            pencil = flat[:, None, None] * np.eye(n) - a
+            try:
+                x = np.linalg.solve(pencil, np.broadcast_to(b.astype(complex), (flat.size,) + b.shape))
+            except np.linalg.LinAlgError:
+                raise ModelError("s: a point coincides with a pole (sI - A is singular there)") from None
+            out += c @ x
+        return out[0] if points.ndim == 0 else out
+
+    def transform(self, t: Any) -> "Realization":
+        """The similar realization ``(T^-1 A T, T^-1 B, C T, D)``.
+
+        Exact when the realization and T are exact (T of ints, Fractions or decimal strings).
+        """
+        if self.exact:
+            from ._exact import solve
+
+            tm = v.exact_matrix(t, "t")
+            self._check_transform(tm)
+            a = solve(tm, self._a.dot(tm), "t")
+            b = solve(tm, self._b, "t")
+            return Realization(a, b, self._c.dot(tm), self._d)
+        tm = v.float_matrix(t, "t")
+        self._check_transform(tm)
+        a, b, c, d = self._float()
+        if tm.shape[0] and np.linalg.cond(tm) > 1.0 / np.finfo(float).eps:
+            raise ModelError("t: the transformation is singular to working precision")
+        rhs = np.hstack([a @ tm, b])
+        sol = np.linalg.solve(tm, rhs) if tm.shape[0] else rhs
+        n = self.n_states
+        return Realization(sol[:, :n], sol[:, n:], c @ tm, d)
+
+    def _check_transform(self, tm: np.ndarray) -> None:
+        n = self.n_states
+        if tm.shape != (n, n):
+            raise ModelError(f"t: expected shape ({n}, {n}) (one row and column per state), found {tm.shape}")
+
+    # -- display -----------------------------------------------------------------------
+    def _repr_latex_(self) -> str:
+        parts = [rf"{name} = {latex_matrix(m)}" for name, m in zip("ABCD", self)]
+        return "$" + r",\quad ".join(parts) + "$"
+
+    def __repr__(self) -> str:
+        kind = "exact " if self.exact else ""
+        head = (f"Realization({kind}n_states={self.n_states}, n_inputs={self.n_inputs}, "
+                f"n_outputs={self.n_outputs})")
+        body = []
+        for name, m in zip("ABCD", self):
+            text = np.array2string(m, max_line_width=100, threshold=200,
+                                   formatter={"object": str} if m.dtype == object else None)
+            body.append(f"{name} =\n{text}")
+        return head + "\n" + "\n".join(body)
+
+
+def _rebuild(a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, info: dict) -> Realization:
+    return Realization._trusted(a, b, c, d, info)

@@ -1,0 +1,183 @@
+"""The one place where user input is checked and converted before it reaches the core.
+
+Every failure raises :class:`ModelError` naming the argument, the expected form and what
+was found. Float data become fresh C-contiguous float64 arrays (never the caller's own),
+exact data become :class:`fractions.Fraction` values.
+"""
+
+from __future__ import annotations
+
+import numbers
+from decimal import Decimal, InvalidOperation
+from fractions import Fraction
+from typing import Any, List, Tuple
+
+import numpy as np
+
+from ._core import ModelError
+
+__all__ = [
+    "float_matrix",
+    "float_polynomial",
+    "exact_matrix",
+    "exact_polynomial",
+    "fraction_array",
+    "check_model_shapes",
+    "check_option",
+]
+
+_REFUSED_TYPES = (str, bytes, dict, set)
+
+
+def _describe(x: Any) -> str:
+    if isinstance(x, np.ndarray):
+        return f"an array of shape {x.shape} and dtype {x.dtype}"
+    return f"a {type(x).__name__}"
+
+
+def _float_array(x: Any, arg: str) -> np.ndarray:
+    if x is None or isinstance(x, _REFUSED_TYPES):
+        raise ModelError(f"{arg}: expected numbers (an array, list or scalar), found {_describe(x)}")
+    try:
+        raw = np.asarray(x)
+    except Exception as exc:  # ragged lists and the like
+        raise ModelError(f"{arg}: cannot be read as a numeric array ({exc})") from None
+    if raw.dtype.kind == "c":
+        raise ModelError(f"{arg}: complex values are not accepted; state-space data are real")
+    if raw.dtype.kind not in "biuf" and raw.dtype != object:
+        raise ModelError(f"{arg}: expected numbers, found {_describe(raw)}")
+    try:
+        arr = np.array(raw, dtype=np.float64, order="C", copy=True)
+    except (TypeError, ValueError, OverflowError) as exc:
+        raise ModelError(f"{arg}: cannot be converted to float64 ({exc})") from None
+    if not np.all(np.isfinite(arr)):
+        raise ModelError(f"{arg}: contains NaN or infinity; all entries must be finite")
+    return arr
+
+
+def float_matrix(x: Any, arg: str) -> np.ndarray:
+    """A fresh 2-D float64 C-contiguous copy of ``x``."""
+    arr = _float_array(x, arg)
+    if arr.ndim != 2:
+        raise ModelError(
+            f"{arg}: expected a 2-D array, found {arr.ndim}-D with shape {arr.shape} "
+            "(a single input or output is still 2-D, e.g. shape (n, 1) or (1, n))"
+        )
+    return arr
+
+
+def float_polynomial(x: Any, arg: str) -> np.ndarray:
+    """A fresh 1-D float64 coefficient array (highest power first); a scalar is degree 0."""
+    arr = _float_array(x, arg)
+    if arr.ndim == 0:
+        arr = arr.reshape(1)
+    if arr.ndim != 1:
+        raise ModelError(f"{arg}: expected a 1-D coefficient array, found shape {arr.shape}")
+    if arr.size == 0:
+        raise ModelError(f"{arg}: the polynomial is empty; it needs at least one coefficient")
+    return arr
+
+
+def to_fraction(v: Any, arg: str) -> Fraction:
+    """One exact number: int, Fraction (or any rational), Decimal or decimal string."""
+    if isinstance(v, (bool, np.bool_)):
+        raise ModelError(f"{arg}: a boolean is not a number here")
+    if isinstance(v, Fraction):
+        return v
+    if isinstance(v, (int, np.integer)):
+        return Fraction(int(v))
+    if isinstance(v, numbers.Rational):
+        return Fraction(int(v.numerator), int(v.denominator))
+    if isinstance(v, Decimal):
+        if not v.is_finite():
+            raise ModelError(f"{arg}: {v!r} is not finite")
+        return Fraction(v)
+    if isinstance(v, str):
+        try:
+            return Fraction(v.strip())
+        except (ValueError, ZeroDivisionError, InvalidOperation):
+            raise ModelError(
+                f"{arg}: {v!r} is not an exact number (use an int, a Fraction, or a decimal "
+                "string such as '0.25' or '1/3')"
+            ) from None
+    if isinstance(v, (float, np.floating)):
+        raise ModelError(
+            f"{arg}: exact mode takes ints, Fractions or decimal strings, found the float {v!r}; "
+            f"write it as a string ('{v!r}') or a Fraction to say which exact value is meant"
+        )
+    raise ModelError(f"{arg}: exact mode takes ints, Fractions or decimal strings, found {_describe(v)}")
+
+
+def _object_array(x: Any, arg: str) -> np.ndarray:
+    if x is None or isinstance(x, (dict, set, bytes)):
+        raise ModelError(f"{arg}: expected exact numbers (an array or list), found {_describe(x)}")
+    try:
+        raw = np.array(x, dtype=object)
+    except Exception as exc:
+        raise ModelError(f"{arg}: cannot be read as an array ({exc})") from None
+    flat = [to_fraction(v, arg) for v in raw.reshape(-1)]
+    out = np.empty(raw.shape, dtype=object)
+    out.reshape(-1)[:] = flat
+    return out
+
+
+def exact_matrix(x: Any, arg: str) -> np.ndarray:
+    """A 2-D object array of Fractions."""
+    arr = _object_array(x, arg)
+    if arr.ndim != 2:
+        raise ModelError(f"{arg}: expected a 2-D array, found {arr.ndim}-D with shape {arr.shape}")
+    return arr
+
+
+def exact_polynomial(x: Any, arg: str) -> np.ndarray:
+    """A 1-D object array of Fractions (a scalar is degree 0)."""
+    arr = _object_array(x, arg)
+    if arr.ndim == 0:
+        arr = arr.reshape(1)
+    if arr.ndim != 1:
+        raise ModelError(f"{arg}: expected a 1-D coefficient array, found shape {arr.shape}")
+    if arr.size == 0:
+        raise ModelError(f"{arg}: the polynomial is empty; it needs at least one coefficient")
+    return arr
+
+
+def to_core(arr: np.ndarray) -> Tuple[int, int, List[int], List[int]]:
+    """Fractions in the (rows, cols, numerators, denominators) form the core takes."""
+    rows, cols = (arr.shape[0], arr.shape[1]) if arr.ndim == 2 else (1, arr.shape[0])
+    flat = arr.reshape(-1)
+    return rows, cols, [f.numerator for f in flat], [f.denominator for f in flat]
+
+
+def fraction_array(data: Tuple[int, int, List[int], List[int]], shape: Tuple[int, ...]) -> np.ndarray:
+    """An object array of Fractions from the core's (rows, cols, nums, dens)."""
+    _, _, nums, dens = data
+    out = np.empty(len(nums), dtype=object)
+    out[:] = [Fraction(p, q) for p, q in zip(nums, dens)]
+    return out.reshape(shape)
+
+
+def check_model_shapes(a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray) -> None:
+    """A n×n, B n×m, C p×n, D p×m."""
+    n = a.shape[0]
+    if a.shape[1] != n:
+        raise ModelError(f"a: expected a square matrix, found shape {a.shape}")
+    if b.shape[0] != n:
+        raise ModelError(f"b: expected {n} rows (one per state, as a is {n}x{n}), found shape {b.shape}")
+    if c.shape[1] != n:
+        raise ModelError(f"c: expected {n} columns (one per state, as a is {n}x{n}), found shape {c.shape}")
+    if d.shape != (c.shape[0], b.shape[1]):
+        raise ModelError(
+            f"d: expected shape ({c.shape[0]}, {b.shape[1]}) (outputs x inputs), found shape {d.shape}"
+        )
+
+
+def check_option(value: Any, arg: str, allowed: Tuple[str, ...]) -> str:
+    if not isinstance(value, str) or value not in allowed:
+        raise ModelError(f"{arg}: unknown value {value!r}; expected one of {', '.join(map(repr, allowed))}")
+    return value
+
+
+def check_flag(value: Any, arg: str) -> bool:
+    if not isinstance(value, (bool, np.bool_)):
+        raise ModelError(f"{arg}: expected True or False, found {_describe(value)}")
+    return bool(value)

@@ -1,0 +1,80 @@
+//! A small dense row-major matrix over any [`Scalar`]: enough for the generic recursions
+//! (products, traces, transposes), with no dependence on a linear-algebra crate.
+
+use crate::scalar::Scalar;
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct Matrix<T> {
+    rows: usize,
+    cols: usize,
+    data: Vec<T>,
+}
+
+impl<T: Scalar> Matrix<T> {
+    pub fn zeros(rows: usize, cols: usize) -> Self {
+        Matrix { rows, cols, data: vec![T::zero(); rows * cols] }
+    }
+
+    pub fn identity(n: usize) -> Self {
+        let mut m = Self::zeros(n, n);
+        for i in 0..n {
+            m.data[i * n + i] = T::one();
+        }
+        m
+    }
+
+    /// Builds from row-major data; `None` when the length does not match.
+    pub fn from_row_major(rows: usize, cols: usize, data: Vec<T>) -> Option<Self> {
+        (data.len() == rows * cols).then_some(Matrix { rows, cols, data })
+    }
+
+    pub fn rows(&self) -> usize { self.rows }
+    pub fn cols(&self) -> usize { self.cols }
+    pub fn as_slice(&self) -> &[T] { &self.data }
+    pub fn into_vec(self) -> Vec<T> { self.data }
+
+    pub fn get(&self, i: usize, j: usize) -> &T { &self.data[i * self.cols + j] }
+    pub fn set(&mut self, i: usize, j: usize, v: T) { self.data[i * self.cols + j] = v; }
+
+    pub fn transpose(&self) -> Self {
+        let mut t = Self::zeros(self.cols, self.rows);
+        for i in 0..self.rows {
+            for j in 0..self.cols {
+                t.data[j * self.rows + i] = self.data[i * self.cols + j].clone();
+            }
+        }
+        t
+    }
+
+    /// `self * rhs`; the caller guarantees `self.cols == rhs.rows`.
+    pub fn matmul(&self, rhs: &Self) -> Self {
+        debug_assert_eq!(self.cols, rhs.rows);
+        let mut out = Self::zeros(self.rows, rhs.cols);
+        for i in 0..self.rows {
+            for k in 0..self.cols {
+                let a = &self.data[i * self.cols + k];
+                if a.is_zero() {
+                    continue;
+                }
+                let row = &rhs.data[k * rhs.cols..(k + 1) * rhs.cols];
+                let out_row = &mut out.data[i * rhs.cols..(i + 1) * rhs.cols];
+                for (o, b) in out_row.iter_mut().zip(row) {
+                    o.add_mul(a, b);
+                }
+            }
+        }
+        out
+    }
+
+    pub fn trace(&self) -> T {
+        let mut t = T::zero();
+        for i in 0..self.rows.min(self.cols) {
+            t = t.add(&self.data[i * self.cols + i]);
+        }
+        t
+    }
+
+    pub fn map<U: Scalar>(&self, f: impl Fn(&T) -> U) -> Matrix<U> {
+        Matrix { rows: self.rows, cols: self.cols, data: self.data.iter().map(f).collect() }
+    }
+}

@@ -1,0 +1,272 @@
+//! The PyO3 binding layer: conversions, GIL release, error mapping — nothing else.
+//!
+//! Inputs arrive already converted to float64 (or to pairs of Python ints for exact data)
+//! by the Python package's single validation module; here they are copied into owned core
+//! matrices (so results never alias and the GIL can be released), the core runs under
+//! `py.detach`, and a `ModelError` from the core becomes the Python `ModelError`. A panic
+//! in the core is a bug; the last-resort guard reports it as `ModelError` rather than
+//! letting it abort the caller's kernel.
+
+use crate::error::ModelError as CoreError;
+use crate::matrix::Matrix;
+use crate::realize::{self, Form};
+use crate::recover::{self, Accuracy, Method};
+use crate::state_space::StateSpace;
+use crate::krylov;
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::Zero;
+use numpy::prelude::*;
+use numpy::{PyArray1, PyReadonlyArray1, PyReadonlyArray2};
+use pyo3::exceptions::PyValueError;
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+use std::panic::{catch_unwind, AssertUnwindSafe};
+
+pyo3::create_exception!(
+    statewright,
+    ModelError,
+    PyValueError,
+    "Bad input to a statewright routine, or a documented failure; the message names the argument."
+);
+
+fn to_py(err: CoreError) -> PyErr {
+    ModelError::new_err(err.to_string())
+}
+
+/// Runs `f` without the GIL, mapping core errors and (as a last resort) panics.
+fn run<T: Send>(py: Python<'_>, f: impl FnOnce() -> Result<T, CoreError> + Send) -> PyResult<T> {
+    let outcome = py.detach(|| catch_unwind(AssertUnwindSafe(f)));
+    match outcome {
+        Ok(Ok(v)) => Ok(v),
+        Ok(Err(e)) => Err(to_py(e)),
+        Err(_) => Err(ModelError::new_err(
+            "internal error: the core panicked on this input (a bug; please report it with the input)",
+        )),
+    }
+}
+
+fn matrix_from(x: &PyReadonlyArray2<'_, f64>) -> Matrix<f64> {
+    let view = x.as_array();
+    let (r, c) = view.dim();
+    Matrix::from_row_major(r, c, view.iter().copied().collect()).expect("shape from the array")
+}
+
+fn vector_from(x: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
+    x.as_array().iter().copied().collect()
+}
+
+fn array2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {
+    let (r, c) = (m.rows(), m.cols());
+    Ok(PyArray1::from_vec(py, m.into_vec()).reshape([r, c])?.into_any())
+}
+
+fn array_nd<'py>(py: Python<'py>, data: Vec<f64>, shape: &[usize]) -> PyResult<Bound<'py, PyAny>> {
+    Ok(PyArray1::from_vec(py, data).reshape(shape.to_vec())?.into_any())
+}
+
+fn accuracy_dict<'py>(py: Python<'py>, acc: &Accuracy) -> PyResult<Bound<'py, PyDict>> {
+    let d = PyDict::new(py);
+    d.set_item("method", acc.method)?;
+    d.set_item("relative_error_bound", acc.relative_error_bound)?;
+    Ok(d)
+}
+
+fn parse_form(form: &str) -> PyResult<Form> {
+    form.parse().map_err(to_py)
+}
+
+fn parse_method(method: &str) -> PyResult<Method> {
+    method.parse().map_err(to_py)
+}
+
+fn model_from(
+    a: &PyReadonlyArray2<'_, f64>,
+    b: &PyReadonlyArray2<'_, f64>,
+    c: &PyReadonlyArray2<'_, f64>,
+    d: &PyReadonlyArray2<'_, f64>,
+) -> PyResult<StateSpace<f64>> {
+    StateSpace::new(matrix_from(a), matrix_from(b), matrix_from(c), matrix_from(d)).map_err(to_py)
+}
+
+type Quad<'py> = (Bound<'py, PyAny>, Bound<'py, PyAny>, Bound<'py, PyAny>, Bound<'py, PyAny>);
+
+#[pyfunction]
+fn realize_float<'py>(
+    py: Python<'py>,
+    num: PyReadonlyArray1<'py, f64>,
+    den: PyReadonlyArray1<'py, f64>,
+    form: &str,
+) -> PyResult<(Quad<'py>, Bound<'py, PyDict>)> {
+    let form = parse_form(form)?;
+    let (num, den) = (vector_from(&num), vector_from(&den));
+    let (ss, modal) = run(py, move || realize::realize_f64(&num, &den, form))?;
+    let info = PyDict::new(py);
+    if let Some(m) = modal {
+        info.set_item("eigenvector_condition", m.eigenvector_condition)?;
+        info.set_item("condition_limit", m.condition_limit)?;
+    }
+    Ok(((array2(py, ss.a)?, array2(py, ss.b)?, array2(py, ss.c)?, array2(py, ss.d)?), info))
+}
+
+#[pyfunction]
+#[pyo3(signature = (a, method, with_adjugates))]
+fn faddeev_leverrier_float<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    method: &str,
+    with_adjugates: bool,
+) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>, Bound<'py, PyDict>)> {
+    let method = parse_method(method)?;
+    let a = matrix_from(&a);
+    let n = a.rows();
+    let (coeffs, adj, acc) = run(py, move || recover::faddeev_leverrier_f64(&a, method, with_adjugates))?;
+    let flat: Vec<f64> = adj.into_iter().flat_map(|m| m.into_vec()).collect();
+    let shape = if with_adjugates { [n, n, n] } else { [0, n, n] };
+    Ok((array_nd(py, coeffs, &[n + 1])?, array_nd(py, flat, &shape)?, accuracy_dict(py, &acc)?))
+}
+
+#[pyfunction]
+fn transfer_function_float<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: PyReadonlyArray2<'py, f64>,
+    c: PyReadonlyArray2<'py, f64>,
+    d: PyReadonlyArray2<'py, f64>,
+    method: &str,
+) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>, Bound<'py, PyDict>)> {
+    let method = parse_method(method)?;
+    let ss = model_from(&a, &b, &c, &d)?;
+    let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
+    let (num, den, acc) = run(py, move || recover::transfer_function_f64(&ss, method))?;
+    Ok((array_nd(py, num, &[p, m, n + 1])?, array_nd(py, den, &[n + 1])?, accuracy_dict(py, &acc)?))
+}
+
+#[pyfunction]
+fn controllability_matrix_float<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: PyReadonlyArray2<'py, f64>,
+) -> PyResult<Bound<'py, PyAny>> {
+    let (a, b) = (matrix_from(&a), matrix_from(&b));
+    check_krylov_shapes(&a, &b, "b", "rows")?;
+    let m = run(py, move || {
+        let k = krylov::controllability_matrix(&a, &b);
+        if k.as_slice().iter().all(|v| v.is_finite()) {
+            Ok(k)
+        } else {
+            Err(CoreError::Overflow { what: "controllability matrix".into() })
+        }
+    })?;
+    array2(py, m)
+}
+
+fn check_krylov_shapes<T: crate::scalar::Scalar>(a: &Matrix<T>, x: &Matrix<T>, arg: &'static str, side: &str) -> PyResult<()> {
+    if a.rows() != a.cols() {
+        return Err(to_py(CoreError::Shape {
+            arg: "a",
+            expected: "a square matrix".into(),
+            found: format!("shape ({}, {})", a.rows(), a.cols()),
+        }));
+    }
+    let found = if side == "rows" { x.rows() } else { x.cols() };
+    if found != a.rows() {
+        return Err(to_py(CoreError::Shape {
+            arg,
+            expected: format!("{} {side} (one per state)", a.rows()),
+            found: format!("shape ({}, {})", x.rows(), x.cols()),
+        }));
+    }
+    Ok(())
+}
+
+// ---- exact data: matrices travel as (rows, cols, numerators, denominators) of Python ints.
+
+type ExactIn = (usize, usize, Vec<BigInt>, Vec<BigInt>);
+type ExactOut = (usize, usize, Vec<BigInt>, Vec<BigInt>);
+
+fn exact_matrix(arg: &'static str, x: ExactIn) -> PyResult<Matrix<BigRational>> {
+    let (r, c, nums, dens) = x;
+    if nums.len() != r * c || dens.len() != r * c {
+        return Err(to_py(CoreError::Shape { arg, expected: format!("{} entries", r * c), found: format!("{}", nums.len()) }));
+    }
+    let mut data = Vec::with_capacity(r * c);
+    for (p, q) in nums.into_iter().zip(dens) {
+        if q.is_zero() {
+            return Err(to_py(CoreError::BadValue { arg, detail: "a fraction has a zero denominator".into() }));
+        }
+        data.push(BigRational::new(p, q));
+    }
+    Ok(Matrix::from_row_major(r, c, data).expect("checked length"))
+}
+
+fn exact_vector(arg: &'static str, x: ExactIn) -> PyResult<Vec<BigRational>> {
+    Ok(exact_matrix(arg, x)?.into_vec())
+}
+
+fn exact_out(m: Matrix<BigRational>) -> ExactOut {
+    let (r, c) = (m.rows(), m.cols());
+    let (nums, dens) = m.into_vec().into_iter().map(|q| (q.numer().clone(), q.denom().clone())).unzip();
+    (r, c, nums, dens)
+}
+
+fn exact_out_vec(v: Vec<BigRational>) -> ExactOut {
+    let n = v.len();
+    exact_out(Matrix::from_row_major(1, n, v).expect("1 x n"))
+}
+
+#[pyfunction]
+fn realize_exact(py: Python<'_>, num: ExactIn, den: ExactIn, form: &str) -> PyResult<(ExactOut, ExactOut, ExactOut, ExactOut)> {
+    let form = parse_form(form)?;
+    if form == Form::Modal {
+        return Err(to_py(CoreError::BadOption {
+            arg: "form",
+            found: "modal".into(),
+            allowed: "a companion form when exact=True (the modal form needs the poles, which are not rational in general)",
+        }));
+    }
+    let (num, den) = (exact_vector("num", num)?, exact_vector("den", den)?);
+    let ss = run(py, move || realize::realize_companion(&num, &den, form))?;
+    Ok((exact_out(ss.a), exact_out(ss.b), exact_out(ss.c), exact_out(ss.d)))
+}
+
+#[pyfunction]
+fn faddeev_leverrier_exact(py: Python<'_>, a: ExactIn) -> PyResult<(ExactOut, Vec<ExactOut>)> {
+    let a = exact_matrix("a", a)?;
+    if a.rows() != a.cols() {
+        return Err(to_py(CoreError::Shape { arg: "a", expected: "a square matrix".into(), found: format!("shape ({}, {})", a.rows(), a.cols()) }));
+    }
+    let (coeffs, adj) = run(py, move || Ok(recover::faddeev_leverrier::faddeev_leverrier(&a)))?;
+    Ok((exact_out_vec(coeffs), adj.into_iter().map(exact_out).collect()))
+}
+
+#[pyfunction]
+fn transfer_function_exact(py: Python<'_>, a: ExactIn, b: ExactIn, c: ExactIn, d: ExactIn) -> PyResult<(ExactOut, ExactOut)> {
+    let ss = StateSpace::new(exact_matrix("a", a)?, exact_matrix("b", b)?, exact_matrix("c", c)?, exact_matrix("d", d)?)
+        .map_err(to_py)?;
+    let (num, den) = run(py, move || Ok(recover::faddeev_leverrier::transfer_function(&ss)))?;
+    Ok((exact_out_vec(num), exact_out_vec(den)))
+}
+
+#[pyfunction]
+fn controllability_matrix_exact(py: Python<'_>, a: ExactIn, b: ExactIn) -> PyResult<ExactOut> {
+    let (a, b) = (exact_matrix("a", a)?, exact_matrix("b", b)?);
+    check_krylov_shapes(&a, &b, "b", "rows")?;
+    let k = run(py, move || Ok(krylov::controllability_matrix(&a, &b)))?;
+    Ok(exact_out(k))
+}
+
+#[pymodule]
+fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add("ModelError", m.py().get_type::<ModelError>())?;
+    m.add_function(wrap_pyfunction!(realize_float, m)?)?;
+    m.add_function(wrap_pyfunction!(realize_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(faddeev_leverrier_float, m)?)?;
+    m.add_function(wrap_pyfunction!(faddeev_leverrier_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(transfer_function_float, m)?)?;
+    m.add_function(wrap_pyfunction!(transfer_function_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(controllability_matrix_float, m)?)?;
+    m.add_function(wrap_pyfunction!(controllability_matrix_exact, m)?)?;
+    m.add("CERTIFIED_TOLERANCE", recover::CERTIFIED_TOLERANCE)?;
+    Ok(())
+}

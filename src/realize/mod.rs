@@ -1,0 +1,113 @@
+//! Realizations of a SISO transfer function in the standard canonical forms.
+//!
+//! Every form starts from the proper split of [`crate::poly::split_proper`]:
+//! `G(s) = d + c(s)/a(s)`, `a` monic of degree n. Each primal form has its dual (the
+//! transposed realization, [`StateSpace::dual`]), which realizes the same SISO transfer
+//! function.
+//!
+//! | form | module |
+//! | --- | --- |
+//! | controllable_canonical, observable_canonical | [`controllable`] |
+//! | controller, observer | [`controller`] |
+//! | controllability, observability | [`krylov`] |
+//! | modal | [`modal`] (float only) |
+
+pub mod controllable;
+pub mod controller;
+pub mod krylov;
+pub mod modal;
+
+use crate::error::{ModelError, Result};
+use crate::poly::{split_proper, ProperSplit};
+use crate::scalar::Scalar;
+use crate::state_space::StateSpace;
+use crate::matrix::Matrix;
+use std::str::FromStr;
+
+/// The canonical forms on offer.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Form {
+    ControllableCanonical,
+    ObservableCanonical,
+    Controller,
+    Observer,
+    Controllability,
+    Observability,
+    Modal,
+}
+
+pub const FORM_NAMES: &str = "'controllable_canonical', 'observable_canonical', 'controller', \
+'observer', 'controllability', 'observability', 'modal'";
+
+impl FromStr for Form {
+    type Err = ModelError;
+    fn from_str(s: &str) -> Result<Self> {
+        Ok(match s {
+            "controllable_canonical" => Form::ControllableCanonical,
+            "observable_canonical" => Form::ObservableCanonical,
+            "controller" => Form::Controller,
+            "observer" => Form::Observer,
+            "controllability" => Form::Controllability,
+            "observability" => Form::Observability,
+            "modal" => Form::Modal,
+            other => {
+                return Err(ModelError::BadOption { arg: "form", found: other.to_string(), allowed: FORM_NAMES })
+            }
+        })
+    }
+}
+
+/// Realize `num/den` in one of the companion forms (every form but `Modal`), over any
+/// [`Scalar`] — exact rationals give exact realizations.
+///
+/// # Errors
+/// Those of [`split_proper`]; `BadOption` for `Form::Modal` (use [`modal::realize_modal`]).
+pub fn realize_companion<T: Scalar>(num: &[T], den: &[T], form: Form) -> Result<StateSpace<T>> {
+    let split = split_proper(num, den)?;
+    companion_from_split(&split, form)
+}
+
+/// The companion form of an already split transfer function.
+pub fn companion_from_split<T: Scalar>(split: &ProperSplit<T>, form: Form) -> Result<StateSpace<T>> {
+    Ok(match form {
+        Form::ControllableCanonical => controllable::controllable_canonical(split),
+        Form::ObservableCanonical => controllable::controllable_canonical(split).dual(),
+        Form::Controller => controller::controller(split),
+        Form::Observer => controller::controller(split).dual(),
+        Form::Controllability => krylov::controllability(split),
+        Form::Observability => krylov::controllability(split).dual(),
+        Form::Modal => {
+            return Err(ModelError::BadOption {
+                arg: "form",
+                found: "modal".into(),
+                allowed: "a companion form here; the modal form needs float data",
+            })
+        }
+    })
+}
+
+/// Realize in float64, any form including `Modal`; checks finiteness first.
+pub fn realize_f64(num: &[f64], den: &[f64], form: Form) -> Result<(StateSpace<f64>, Option<modal::ModalInfo>)> {
+    crate::error::require_finite("num", num)?;
+    crate::error::require_finite("den", den)?;
+    let split = split_proper(num, den)?;
+    if split.den.iter().chain(&split.strict_num).any(|v| !v.is_finite()) || !split.direct.is_finite() {
+        return Err(ModelError::Overflow { what: "normalising num/den by the leading denominator coefficient".into() });
+    }
+    if form == Form::Modal {
+        let (ss, info) = modal::modal_from_split(&split)?;
+        Ok((ss, Some(info)))
+    } else {
+        Ok((companion_from_split(&split, form)?, None))
+    }
+}
+
+/// `[[d]]` and the 0-state pieces shared by every form of a pure gain.
+pub(crate) fn gain_only<T: Scalar>(d: &T) -> StateSpace<T> {
+    StateSpace {
+        a: Matrix::zeros(0, 0),
+        b: Matrix::zeros(0, 1),
+        c: Matrix::zeros(1, 0),
+        d: Matrix::from_row_major(1, 1, vec![d.clone()]).expect("1x1"),
+    }
+}

@@ -1,0 +1,221 @@
+//! Modal form: a real block-diagonal realization of the poles.
+//!
+//! # Purpose
+//! `A = diag(blocks)` with a real pole `λ` as the 1×1 block `[λ]` and each complex pair
+//! `σ ± jω` (ω > 0) as `[[σ, ω], [-ω, σ]]`, ordered by ascending real part, ties by
+//! ascending ω (a real pole counts as ω = 0). `B = T⁻¹ b` and `C = c T` for the real modal
+//! basis T, `D = d`. Identity: `T⁻¹ A_companion T = A`.
+//!
+//! # Method
+//! The controllable canonical realization is balanced by a diagonal similarity of powers of
+//! two (Parlett & Reinsch 1969; exact, it changes no eigenvalue), then its eigenvalues and
+//! eigenvectors are computed by faer's real non-symmetric eigensolver (Hessenberg–QR).
+//! Each eigenvector is scaled to unit 2-norm with its largest component real and positive,
+//! and a pair `v = v_r + j v_i` contributes the columns `[v_r, v_i]`, because
+//! `A v_r = σ v_r − ω v_i` and `A v_i = ω v_r + σ v_i`.
+//!
+//! # Numerical aspects
+//! A companion matrix is nonderogatory, so a repeated pole is always defective and the
+//! modal form does not exist; in floating point a double pole shows up as two eigenvectors
+//! at an angle of about √eps. The form is refused when the 2-norm condition number of the
+//! (balanced, column-normalised) eigenvector matrix exceeds `1 / (n √eps)` (about 6.7e7/n):
+//! past that point B and C would carry fewer than half of the significant digits.
+//! The condition number used for the decision is reported in [`ModalInfo`].
+//!
+//! # References
+//! B. N. Parlett and C. Reinsch, "Balancing a matrix for calculation of eigenvalues and
+//! eigenvectors", Numer. Math. 13 (1969). T. Kailath, *Linear Systems*, Prentice Hall 1980,
+//! ch. 2 (modal and companion forms).
+//!
+//! # Errors
+//! `NoModalForm` for repeated or nearly repeated poles; `NoConvergence` if the eigensolver
+//! fails.
+
+use crate::error::{ModelError, Result};
+use crate::matrix::Matrix;
+use crate::poly::ProperSplit;
+use crate::state_space::StateSpace;
+use faer::prelude::*;
+
+/// What the modal decision was made on.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModalInfo {
+    /// 2-norm condition number of the balanced, column-normalised eigenvector matrix.
+    pub eigenvector_condition: f64,
+    /// The refusal threshold `1 / (n √eps)` it was compared with.
+    pub condition_limit: f64,
+}
+
+pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, ModalInfo)> {
+    let n = split.order();
+    if n == 0 {
+        let info = ModalInfo { eigenvector_condition: 1.0, condition_limit: f64::INFINITY };
+        return Ok((super::gain_only(&split.direct), info));
+    }
+    let companion = super::controllable::controllable_canonical(split);
+    let (balanced, scale) = balance(&companion.a);
+    let eig = Mat::from_fn(n, n, |i, j| *balanced.get(i, j))
+        .eigen()
+        .map_err(|_| ModelError::NoConvergence { routine: "the eigenvalue iteration of the modal form" })?;
+    let values: Vec<(f64, f64)> = eig.S().column_vector().iter().map(|z| (z.re, z.im)).collect();
+    if values.iter().any(|(re, im)| !re.is_finite() || !im.is_finite()) {
+        return Err(ModelError::NoConvergence { routine: "the eigenvalue iteration of the modal form" });
+    }
+
+    // One representative per real pole or conjugate pair, in the documented order.
+    let mut chosen: Vec<usize> = (0..n).filter(|&k| values[k].1 >= 0.0).collect();
+    chosen.sort_by(|&x, &y| {
+        let (rx, wx) = values[x];
+        let (ry, wy) = values[y];
+        rx.total_cmp(&ry).then(wx.total_cmp(&wy))
+    });
+    let mut columns: Vec<Vec<f64>> = Vec::with_capacity(n);
+    let mut a = Matrix::zeros(n, n);
+    for &k in &chosen {
+        let (sigma, omega) = values[k];
+        let v = normalised_eigenvector(&eig, k);
+        let at = columns.len();
+        if omega == 0.0 {
+            a.set(at, at, sigma);
+            columns.push(v.iter().map(|z| z.0).collect());
+        } else {
+            if at + 1 >= n {
+                return Err(ModelError::NoConvergence { routine: "the eigenvalue pairing of the modal form" });
+            }
+            a.set(at, at, sigma);
+            a.set(at, at + 1, omega);
+            a.set(at + 1, at, -omega);
+            a.set(at + 1, at + 1, sigma);
+            columns.push(v.iter().map(|z| z.0).collect());
+            columns.push(v.iter().map(|z| z.1).collect());
+        }
+    }
+    if columns.len() != n {
+        return Err(ModelError::NoConvergence { routine: "the eigenvalue pairing of the modal form" });
+    }
+
+    // Decide on the balanced basis with unit columns (its conditioning is what B and C inherit).
+    let basis = Mat::from_fn(n, n, |i, j| columns[j][i]);
+    let mut unit = basis.clone();
+    for j in 0..n {
+        let norm = (0..n).map(|i| unit[(i, j)] * unit[(i, j)]).sum::<f64>().sqrt();
+        for i in 0..n {
+            unit[(i, j)] /= norm;
+        }
+    }
+    let sv = unit
+        .singular_values()
+        .map_err(|_| ModelError::NoConvergence { routine: "the SVD of the modal basis" })?;
+    let condition = if sv[n - 1] > 0.0 { sv[0] / sv[n - 1] } else { f64::INFINITY };
+    let limit = 1.0 / (n as f64 * f64::EPSILON.sqrt());
+    let info = ModalInfo { eigenvector_condition: condition, condition_limit: limit };
+    if !(condition <= limit) {
+        let pole = closest_pair(&values);
+        return Err(ModelError::NoModalForm {
+            detail: format!(
+                "the modal form does not exist for repeated (defective) poles; poles {pole} \
+                 coincide or nearly coincide (eigenvector condition number {condition:.3e} > {limit:.3e})"
+            ),
+        });
+    }
+
+    // T = S · basis in the companion coordinates (S the balancing scale).
+    let t = Mat::from_fn(n, n, |i, j| scale[i] * basis[(i, j)]);
+    let b_companion = Mat::from_fn(n, 1, |i, _| *companion.b.get(i, 0));
+    let b_modal = t.partial_piv_lu().solve(&b_companion);
+    let c_modal: Vec<f64> = (0..n)
+        .map(|j| (0..n).map(|i| companion.c.get(0, i) * t[(i, j)]).sum())
+        .collect();
+    let b = Matrix::from_row_major(n, 1, (0..n).map(|i| b_modal[(i, 0)]).collect()).expect("n x 1");
+    let c = Matrix::from_row_major(1, n, c_modal).expect("1 x n");
+    if b.as_slice().iter().chain(c.as_slice()).any(|v| !v.is_finite()) {
+        return Err(ModelError::Overflow { what: "the modal B and C".into() });
+    }
+    Ok((StateSpace { a, b, c, d: companion.d }, info))
+}
+
+/// Unit 2-norm eigenvector k with its largest component real and positive, as (re, im) pairs.
+fn normalised_eigenvector(eig: &faer::linalg::solvers::Eigen<f64>, k: usize) -> Vec<(f64, f64)> {
+    let u = eig.U();
+    let n = u.nrows();
+    let col: Vec<(f64, f64)> = (0..n).map(|i| (u[(i, k)].re, u[(i, k)].im)).collect();
+    let (mut big, mut big_abs) = (0, -1.0);
+    for (i, z) in col.iter().enumerate() {
+        let m = z.0.hypot(z.1);
+        if m > big_abs {
+            big = i;
+            big_abs = m;
+        }
+    }
+    let norm = col.iter().map(|z| z.0 * z.0 + z.1 * z.1).sum::<f64>().sqrt();
+    // Multiply by conj(phase of the largest component) / norm.
+    let (pr, pi) = (col[big].0 / big_abs, -col[big].1 / big_abs);
+    col.iter().map(|z| ((z.0 * pr - z.1 * pi) / norm, (z.0 * pi + z.1 * pr) / norm)).collect()
+}
+
+/// The two poles closest to each other, for the error message.
+fn closest_pair(values: &[(f64, f64)]) -> String {
+    let mut best = (f64::INFINITY, 0, 0);
+    for i in 0..values.len() {
+        for j in i + 1..values.len() {
+            let d = (values[i].0 - values[j].0).hypot(values[i].1 - values[j].1);
+            if d < best.0 {
+                best = (d, i, j);
+            }
+        }
+    }
+    let fmt = |(re, im): (f64, f64)| if im == 0.0 { format!("{re:.6e}") } else { format!("{re:.6e}{im:+.6e}j") };
+    if values.len() < 2 {
+        return "(none)".into();
+    }
+    format!("{} and {}", fmt(values[best.1]), fmt(values[best.2]))
+}
+
+/// Diagonal balancing by powers of two: returns `S⁻¹ A S` and the diagonal of S.
+///
+/// Parlett–Reinsch iteration with radix 2 (exact in floating point), at most 64 sweeps.
+pub fn balance(a: &Matrix<f64>) -> (Matrix<f64>, Vec<f64>) {
+    let n = a.rows();
+    let mut m = a.clone();
+    let mut scale = vec![1.0; n];
+    for _sweep in 0..64 {
+        let mut converged = true;
+        for i in 0..n {
+            let (mut col, mut row) = (0.0, 0.0);
+            for j in 0..n {
+                if j != i {
+                    col += m.get(j, i).abs();
+                    row += m.get(i, j).abs();
+                }
+            }
+            if col == 0.0 || row == 0.0 {
+                continue;
+            }
+            let sum = col + row;
+            let mut f = 1.0;
+            let (mut c, mut r) = (col, row);
+            while c < r / 2.0 {
+                c *= 2.0;
+                r /= 2.0;
+                f *= 2.0;
+            }
+            while c >= r * 2.0 {
+                c /= 2.0;
+                r *= 2.0;
+                f /= 2.0;
+            }
+            if (c + r) < 0.95 * sum {
+                converged = false;
+                scale[i] *= f;
+                for j in 0..n {
+                    m.set(i, j, m.get(i, j) / f);
+                    m.set(j, i, m.get(j, i) * f);
+                }
+            }
+        }
+        if converged {
+            break;
+        }
+    }
+    (m, scale)
+}

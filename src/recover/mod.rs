@@ -1,0 +1,134 @@
+//! Transfer-function recovery: characteristic polynomial, adjugate sequence and transfer
+//! matrix of a state-space model by the Faddeev–LeVerrier recursion.
+//!
+//! Exact data use the generic recursion ([`faddeev_leverrier`]). Float data choose between
+//! two evaluations of the same recursion ([`Method`]):
+//!
+//! * the float recursion with a running error bound ([`certified`]), accepted when the bound
+//!   certifies every coefficient to a relative accuracy of [`CERTIFIED_TOLERANCE`];
+//! * the exact recursion on the float data, rounded once ([`dyadic`]): correctly rounded
+//!   results whatever the conditioning.
+//!
+//! `Method::Auto` tries the first and falls back to the second. The plain float recursion
+//! without a check is on offer as `Method::Recursion` for studies of its accuracy.
+
+pub mod certified;
+pub mod dyadic;
+pub mod faddeev_leverrier;
+
+use crate::error::{require_finite, ModelError, Result};
+use crate::matrix::Matrix;
+use crate::state_space::StateSpace;
+use std::str::FromStr;
+
+/// Relative accuracy (per coefficient) the fast path must certify to be accepted:
+/// 2⁻⁴⁸ ≈ 3.6e-15, i.e. within 32 units in the last place.
+pub const CERTIFIED_TOLERANCE: f64 = 1.0 / 281_474_976_710_656.0;
+
+/// How float results are computed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Method {
+    /// Certified float recursion if its bound allows, else exact-then-rounded.
+    Auto,
+    /// The plain float64 recursion, unchecked.
+    Recursion,
+    /// Exact recursion on the float data, each result correctly rounded.
+    Exact,
+}
+
+pub const METHOD_NAMES: &str = "'auto', 'recursion', 'exact'";
+
+impl FromStr for Method {
+    type Err = ModelError;
+    fn from_str(s: &str) -> Result<Self> {
+        match s {
+            "auto" => Ok(Method::Auto),
+            "recursion" => Ok(Method::Recursion),
+            "exact" => Ok(Method::Exact),
+            other => Err(ModelError::BadOption { arg: "method", found: other.into(), allowed: METHOD_NAMES }),
+        }
+    }
+}
+
+/// Which evaluation produced a float result, and how accurate it is.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Accuracy {
+    /// "certified recursion", "exact, rounded once" or "recursion (unchecked)".
+    pub method: &'static str,
+    /// Bound on the relative error of every returned coefficient (∞ when unchecked).
+    pub relative_error_bound: f64,
+}
+
+const EXACT: Accuracy = Accuracy { method: "exact, rounded once", relative_error_bound: f64::EPSILON / 2.0 };
+
+fn unchecked(bound: f64) -> Accuracy {
+    Accuracy { method: "recursion (unchecked)", relative_error_bound: bound }
+}
+
+fn check_square(a: &Matrix<f64>) -> Result<()> {
+    if a.rows() != a.cols() {
+        return Err(ModelError::Shape {
+            arg: "a",
+            expected: "a square matrix".into(),
+            found: format!("shape ({}, {})", a.rows(), a.cols()),
+        });
+    }
+    require_finite("a", a.as_slice())
+}
+
+fn certified_ok(seq: &certified::CertifiedSequence) -> Option<f64> {
+    let worst = seq.worst_relative_bound();
+    (seq.is_finite() && worst <= CERTIFIED_TOLERANCE).then_some(worst)
+}
+
+fn split_adjugates(flat: Vec<f64>, n: usize) -> Vec<Matrix<f64>> {
+    flat.chunks(n * n).map(|c| Matrix::from_row_major(n, n, c.to_vec()).expect("n x n")).collect()
+}
+
+/// Characteristic polynomial `[1, c_1, ..., c_n]` and adjugates `N_0 .. N_{n−1}` of float `a`.
+pub fn faddeev_leverrier_f64(a: &Matrix<f64>, method: Method, with_adjugates: bool) -> Result<(Vec<f64>, Vec<Matrix<f64>>, Accuracy)> {
+    check_square(a)?;
+    let n = a.rows();
+    if method != Method::Exact {
+        let seq = certified::certified_recursion(a.as_slice(), n, with_adjugates, None);
+        let accepted = if method == Method::Recursion { Some(seq.worst_relative_bound()) } else { certified_ok(&seq) };
+        if let Some(bound) = accepted {
+            if !seq.is_finite() && method == Method::Recursion {
+                return Err(ModelError::Overflow { what: "the float recursion".into() });
+            }
+            let acc = if method == Method::Recursion {
+                unchecked(bound)
+            } else {
+                Accuracy { method: "certified recursion", relative_error_bound: bound }
+            };
+            return Ok((seq.coeffs, split_adjugates(seq.adjugates, n), acc));
+        }
+    }
+    let (coeffs, adj) = dyadic::faddeev_leverrier_dyadic(a, with_adjugates)?;
+    Ok((coeffs, adj, EXACT))
+}
+
+/// Transfer matrix `(num (p·m·(n+1)), den (n+1))` of a float model.
+pub fn transfer_function_f64(ss: &StateSpace<f64>, method: Method) -> Result<(Vec<f64>, Vec<f64>, Accuracy)> {
+    for (arg, m) in [("a", &ss.a), ("b", &ss.b), ("c", &ss.c), ("d", &ss.d)] {
+        require_finite(arg, m.as_slice())?;
+    }
+    let n = ss.n_states();
+    if method != Method::Exact {
+        let seq = certified::certified_recursion(ss.a.as_slice(), n, false, Some(ss));
+        let accepted = if method == Method::Recursion { Some(seq.worst_relative_bound()) } else { certified_ok(&seq) };
+        if let Some(bound) = accepted {
+            if !seq.is_finite() && method == Method::Recursion {
+                return Err(ModelError::Overflow { what: "the float recursion".into() });
+            }
+            let acc = if method == Method::Recursion {
+                unchecked(bound)
+            } else {
+                Accuracy { method: "certified recursion", relative_error_bound: bound }
+            };
+            return Ok((seq.numerator, seq.coeffs, acc));
+        }
+    }
+    let (num, den) = dyadic::transfer_function_dyadic(ss)?;
+    Ok((num, den, EXACT))
+}
