@@ -4,8 +4,10 @@
 //! Exact data use the generic recursion ([`faddeev_leverrier`]). Float data choose between
 //! two evaluations of the same recursion ([`Method`]):
 //!
-//! * the float recursion with a running error bound ([`certified`]), accepted when the bound
-//!   certifies every coefficient to a relative accuracy of [`CERTIFIED_TOLERANCE`];
+//! * the recursion in double-double arithmetic (about 106 bits) with a running error bound
+//!   ([`certified`]), accepted when the bound certifies every result to [`CERTIFIED_TOLERANCE`]
+//!   relative before the final rounding to float64 (so the float64 result is within
+//!   `0.5 + 1/8` units in the last place: correctly rounded except within 1/8 ulp of a tie);
 //! * the exact recursion on the float data, rounded once ([`dyadic`]): correctly rounded
 //!   results whatever the conditioning.
 //!
@@ -13,6 +15,7 @@
 //! without a check is on offer as `Method::Recursion` for studies of its accuracy.
 
 pub mod certified;
+pub mod double_double;
 pub mod dyadic;
 pub mod faddeev_leverrier;
 
@@ -21,14 +24,17 @@ use crate::matrix::Matrix;
 use crate::state_space::StateSpace;
 use std::str::FromStr;
 
-/// Relative accuracy (per coefficient) the fast path must certify to be accepted:
-/// 2⁻⁴⁸ ≈ 3.6e-15, i.e. within 32 units in the last place.
-pub const CERTIFIED_TOLERANCE: f64 = 1.0 / 281_474_976_710_656.0;
+/// Relative accuracy (per coefficient, before rounding to float64) the double-double path
+/// must certify to be accepted: 2⁻⁵⁶ ≈ 1.4e-17, an eighth of float64's unit roundoff.
+pub const CERTIFIED_TOLERANCE: f64 = 1.0 / 72_057_594_037_927_936.0;
+
+/// float64's unit roundoff, the error of the final rounding.
+const FLOAT_UNIT: f64 = f64::EPSILON / 2.0;
 
 /// How float results are computed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Method {
-    /// Certified float recursion if its bound allows, else exact-then-rounded.
+    /// Certified double-double recursion if its bound allows, else exact-then-rounded.
     Auto,
     /// The plain float64 recursion, unchecked.
     Recursion,
@@ -53,7 +59,7 @@ impl FromStr for Method {
 /// Which evaluation produced a float result, and how accurate it is.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Accuracy {
-    /// "certified recursion", "exact, rounded once" or "recursion (unchecked)".
+    /// "certified double-double recursion", "exact, rounded once" or "float64 recursion (unchecked)".
     pub method: &'static str,
     /// Bound on the relative error of every returned coefficient (∞ when unchecked).
     pub relative_error_bound: f64,
@@ -62,7 +68,7 @@ pub struct Accuracy {
 const EXACT: Accuracy = Accuracy { method: "exact, rounded once", relative_error_bound: f64::EPSILON / 2.0 };
 
 fn unchecked(bound: f64) -> Accuracy {
-    Accuracy { method: "recursion (unchecked)", relative_error_bound: bound }
+    Accuracy { method: "float64 recursion (unchecked)", relative_error_bound: bound }
 }
 
 fn check_square(a: &Matrix<f64>) -> Result<()> {
@@ -76,13 +82,30 @@ fn check_square(a: &Matrix<f64>) -> Result<()> {
     require_finite("a", a.as_slice())
 }
 
-fn certified_ok(seq: &certified::CertifiedSequence) -> Option<f64> {
-    let worst = seq.worst_relative_bound();
-    (seq.is_finite() && worst <= CERTIFIED_TOLERANCE).then_some(worst)
-}
-
 fn split_adjugates(flat: Vec<f64>, n: usize) -> Vec<Matrix<f64>> {
     flat.chunks(n * n).map(|c| Matrix::from_row_major(n, n, c.to_vec()).expect("n x n")).collect()
+}
+
+/// The fast evaluations: plain float64 for `Recursion`, certified double-double for `Auto`
+/// (`None` when the bound does not certify it). `Exact` never comes here.
+fn fast_path(a: &Matrix<f64>, method: Method, with_adjugates: bool, model: Option<&StateSpace<f64>>)
+    -> Result<Option<(certified::CertifiedSequence, Accuracy)>> {
+    let n = a.rows();
+    if method == Method::Recursion {
+        let seq = certified::certified_recursion::<f64>(a.as_slice(), n, with_adjugates, model);
+        if !seq.is_finite() {
+            return Err(ModelError::Overflow { what: "the float64 recursion".into() });
+        }
+        let bound = seq.worst_relative_bound();
+        return Ok(Some((seq, unchecked(bound))));
+    }
+    let seq = certified::certified_recursion::<double_double::DoubleDouble>(a.as_slice(), n, with_adjugates, model);
+    let worst = seq.worst_relative_bound();
+    if seq.is_finite() && worst <= CERTIFIED_TOLERANCE {
+        let acc = Accuracy { method: "certified double-double recursion", relative_error_bound: worst + FLOAT_UNIT };
+        return Ok(Some((seq, acc)));
+    }
+    Ok(None)
 }
 
 /// Characteristic polynomial `[1, c_1, ..., c_n]` and adjugates `N_0 .. N_{n−1}` of float `a`.
@@ -90,17 +113,7 @@ pub fn faddeev_leverrier_f64(a: &Matrix<f64>, method: Method, with_adjugates: bo
     check_square(a)?;
     let n = a.rows();
     if method != Method::Exact {
-        let seq = certified::certified_recursion(a.as_slice(), n, with_adjugates, None);
-        let accepted = if method == Method::Recursion { Some(seq.worst_relative_bound()) } else { certified_ok(&seq) };
-        if let Some(bound) = accepted {
-            if !seq.is_finite() && method == Method::Recursion {
-                return Err(ModelError::Overflow { what: "the float recursion".into() });
-            }
-            let acc = if method == Method::Recursion {
-                unchecked(bound)
-            } else {
-                Accuracy { method: "certified recursion", relative_error_bound: bound }
-            };
+        if let Some((seq, acc)) = fast_path(a, method, with_adjugates, None)? {
             return Ok((seq.coeffs, split_adjugates(seq.adjugates, n), acc));
         }
     }
@@ -113,19 +126,8 @@ pub fn transfer_function_f64(ss: &StateSpace<f64>, method: Method) -> Result<(Ve
     for (arg, m) in [("a", &ss.a), ("b", &ss.b), ("c", &ss.c), ("d", &ss.d)] {
         require_finite(arg, m.as_slice())?;
     }
-    let n = ss.n_states();
     if method != Method::Exact {
-        let seq = certified::certified_recursion(ss.a.as_slice(), n, false, Some(ss));
-        let accepted = if method == Method::Recursion { Some(seq.worst_relative_bound()) } else { certified_ok(&seq) };
-        if let Some(bound) = accepted {
-            if !seq.is_finite() && method == Method::Recursion {
-                return Err(ModelError::Overflow { what: "the float recursion".into() });
-            }
-            let acc = if method == Method::Recursion {
-                unchecked(bound)
-            } else {
-                Accuracy { method: "certified recursion", relative_error_bound: bound }
-            };
+        if let Some((seq, acc)) = fast_path(&ss.a, method, false, Some(ss))? {
             return Ok((seq.numerator, seq.coeffs, acc));
         }
     }
