@@ -22,3 +22,6 @@ pub use matrix::Matrix;
 pub use realize::Form;
 pub use recover::Method;
 pub use state_space::StateSpace;
+
+#[cfg(test)]
+mod tests;

@@ -1,0 +1,174 @@
+//! Unit tests of the core (plain `cargo test`, no Python). Each check names its reference:
+//! "(identity)" for a mathematical identity, "(hand)" for a value worked by hand here.
+
+use crate::error::ModelError;
+use crate::krylov::controllability_matrix;
+use crate::matrix::Matrix;
+use crate::poly::split_proper;
+use crate::realize::{realize_companion, realize_f64, Form};
+use crate::recover::dyadic::round_scaled;
+use crate::recover::faddeev_leverrier::{faddeev_leverrier, transfer_function};
+use crate::recover::{faddeev_leverrier_f64, transfer_function_f64, Method};
+use num_bigint::BigInt;
+use num_rational::BigRational;
+
+fn q(p: i64, d: i64) -> BigRational {
+    BigRational::new(BigInt::from(p), BigInt::from(d))
+}
+
+fn qs(v: &[i64]) -> Vec<BigRational> {
+    v.iter().map(|&x| q(x, 1)).collect()
+}
+
+const COMPANION_FORMS: [Form; 6] = [
+    Form::ControllableCanonical,
+    Form::ObservableCanonical,
+    Form::Controller,
+    Form::Observer,
+    Form::Controllability,
+    Form::Observability,
+];
+
+#[test]
+fn proper_split_of_a_non_monic_biproper_function() {
+    // (2s³+3s²+s+5)/(2s³+12s²+22s+12): den/2 = s³+6s²+11s+6, d = 1,
+    // c = b − a·d = [1.5−6, 0.5−11, 2.5−6] (hand)
+    let s = split_proper(&qs(&[2, 3, 1, 5]), &qs(&[2, 12, 22, 12])).unwrap();
+    assert_eq!(s.den, qs(&[1, 6, 11, 6]));
+    assert_eq!(s.direct, q(1, 1));
+    assert_eq!(s.strict_num, vec![q(-9, 2), q(-21, 2), q(-7, 2)]);
+}
+
+#[test]
+fn leading_zeros_pure_gain_and_bad_polynomials() {
+    let s = split_proper(&qs(&[0, 0, 4]), &qs(&[0, 2])).unwrap();
+    assert_eq!((s.order(), s.direct.clone()), (0, q(2, 1)));
+    assert_eq!(split_proper(&qs(&[1, 0]), &qs(&[0, 0])), Err(ModelError::ZeroPolynomial { arg: "den" }));
+    assert_eq!(split_proper::<BigRational>(&[], &qs(&[1])), Err(ModelError::ZeroPolynomial { arg: "num" }));
+    assert_eq!(split_proper(&qs(&[1, 0, 0]), &qs(&[1, 1])), Err(ModelError::Improper { num_degree: 2, den_degree: 1 }));
+    // A zero numerator is the zero transfer function, not an error.
+    let z = split_proper(&qs(&[0]), &qs(&[1, 3, 2])).unwrap();
+    assert!(z.strict_num.iter().all(|c| *c == q(0, 1)));
+}
+
+#[test]
+fn every_companion_form_recovers_its_transfer_function_exactly() {
+    // (identity) C adj(sI−A) B + det(sI−A) D = den_monic·d + c(s): the monic input back.
+    let (num, den) = (qs(&[2, 3, 1, 5]), qs(&[2, 12, 22, 12]));
+    let s = split_proper(&num, &den).unwrap();
+    for form in COMPANION_FORMS {
+        let ss = realize_companion(&num, &den, form).unwrap();
+        let (n_out, d_out) = transfer_function(&ss);
+        assert_eq!(d_out, s.den, "{form:?}");
+        let expected: Vec<BigRational> = num.iter().map(|c| c / q(2, 1)).collect();
+        assert_eq!(n_out, expected, "{form:?}");
+    }
+}
+
+#[test]
+fn controllability_form_has_identity_controllability_matrix() {
+    // (identity) A^(k−1) e_1 = e_k in the controllability form.
+    let ss = realize_companion(&qs(&[1, 2, 3]), &qs(&[1, 4, 5, 6]), Form::Controllability).unwrap();
+    assert_eq!(controllability_matrix(&ss.a, &ss.b), Matrix::identity(3));
+    // (identity) its C holds the Markov parameters h_k = C A^(k−1) B of the controllable form.
+    let cc = realize_companion(&qs(&[1, 2, 3]), &qs(&[1, 4, 5, 6]), Form::ControllableCanonical).unwrap();
+    let k = controllability_matrix(&cc.a, &cc.b);
+    assert_eq!(cc.c.matmul(&k), ss.c);
+}
+
+#[test]
+fn faddeev_leverrier_of_a_small_integer_matrix() {
+    // [[1,2],[3,4]]: det(sI−A) = s² − 5s − 2, adj(sI−A) = I s + (A − 5I) (hand)
+    let a = Matrix::from_row_major(2, 2, qs(&[1, 2, 3, 4])).unwrap();
+    let (c, adj) = faddeev_leverrier(&a);
+    assert_eq!(c, qs(&[1, -5, -2]));
+    assert_eq!(adj[1], Matrix::from_row_major(2, 2, qs(&[-4, 2, 3, -1])).unwrap());
+}
+
+#[test]
+fn correct_rounding_of_scaled_integers() {
+    // Ties go to even; values above a tie round up (IEEE 754 round to nearest).
+    let two53 = BigInt::from(1u64 << 53);
+    assert_eq!(round_scaled(&(&two53 + 1), 0), Some(9007199254740992.0));
+    assert_eq!(round_scaled(&(&two53 + 3), 0), Some(9007199254740996.0));
+    assert_eq!(round_scaled(&(BigInt::from(3) << 2000usize), -2000), Some(3.0));
+    assert_eq!(round_scaled(&BigInt::from(-5), -1), Some(-2.5));
+    assert_eq!(round_scaled(&BigInt::from(1), 5000), None);
+}
+
+fn spread_matrix(n: usize) -> Matrix<f64> {
+    // Lower-triangular plus a dense coupling: eigenvalues −10^(−2..2) (the diagonal),
+    // dyadic-friendly entries so the exact result is known to be representable.
+    let mut data = vec![0.0; n * n];
+    for i in 0..n {
+        data[i * n + i] = -(10f64).powf(-2.0 + 4.0 * i as f64 / (n - 1) as f64);
+        for j in 0..i {
+            data[i * n + j] = ((i * 7 + j * 3) % 5) as f64 - 2.0;
+        }
+    }
+    Matrix::from_row_major(n, n, data).unwrap()
+}
+
+#[test]
+fn auto_and_exact_agree_and_exact_matches_the_product_of_the_diagonal() {
+    // A triangular matrix's characteristic polynomial is Π (s − a_ii) (identity); the
+    // exact path rounds once, so its constant term is the correctly rounded product.
+    let a = spread_matrix(12);
+    let (exact, _, acc) = faddeev_leverrier_f64(&a, Method::Exact, false).unwrap();
+    assert_eq!(acc.method, "exact, rounded once");
+    let diag: Vec<BigRational> = (0..12).map(|i| BigRational::from_float(*a.get(i, i)).unwrap()).collect();
+    let product = diag.iter().fold(q(1, 1), |acc, d| acc * (-d.clone()));
+    let (auto, _, _) = faddeev_leverrier_f64(&a, Method::Auto, false).unwrap();
+    assert_eq!(auto, exact);
+    let reference: f64 = {
+        use num_traits::ToPrimitive;
+        product.to_f64().unwrap()
+    };
+    assert!((exact[12] - reference).abs() <= f64::EPSILON * reference.abs());
+}
+
+#[test]
+fn transfer_function_float_matches_exact_rationals() {
+    // (identity) the float routine on dyadic data equals the rational recursion, rounded.
+    let num = [1.0, -0.5, 0.25, 3.0];
+    let den = [1.0, 6.0, 11.0, 6.0];
+    for form in COMPANION_FORMS {
+        let (ss, _) = realize_f64(&num, &den, form).unwrap();
+        for method in [Method::Auto, Method::Exact, Method::Recursion] {
+            let (n_out, d_out, _) = transfer_function_f64(&ss, method).unwrap();
+            assert_eq!(d_out, den.to_vec(), "{form:?} {method:?}");
+            for (x, y) in n_out.iter().zip(&num) {
+                assert!((x - y).abs() <= 8.0 * f64::EPSILON * y.abs().max(1.0), "{form:?} {method:?}");
+            }
+        }
+    }
+}
+
+#[test]
+fn modal_form_orders_poles_and_refuses_double_poles() {
+    // 1/((s+1)(s+2)(s+3)) has poles −3, −2, −1: ascending real part (hand).
+    let (ss, info) = realize_f64(&[1.0], &[1.0, 6.0, 11.0, 6.0], Form::Modal).unwrap();
+    let diag: Vec<f64> = (0..3).map(|i| *ss.a.get(i, i)).collect();
+    for (x, y) in diag.iter().zip([-3.0, -2.0, -1.0]) {
+        assert!((x - y).abs() < 1e-12);
+    }
+    assert!(info.unwrap().eigenvector_condition < 1e3);
+    // (s² + 2s + 5) has poles −1 ± 2j: block [[−1, 2], [−2, −1]] (hand).
+    let (pair, _) = realize_f64(&[1.0], &[1.0, 2.0, 5.0], Form::Modal).unwrap();
+    let expect = [-1.0, 2.0, -2.0, -1.0];
+    for (x, y) in pair.a.as_slice().iter().zip(expect) {
+        assert!((x - y).abs() < 1e-12);
+    }
+    match realize_f64(&[1.0], &[1.0, 2.0, 1.0], Form::Modal) {
+        Err(ModelError::NoModalForm { detail }) => assert!(detail.contains("does not exist")),
+        other => panic!("expected NoModalForm, got {other:?}"),
+    }
+}
+
+#[test]
+fn bad_float_input_is_refused_not_panicked() {
+    assert_eq!(realize_f64(&[f64::NAN], &[1.0, 1.0], Form::Controller).unwrap_err(), ModelError::NonFinite { arg: "num" });
+    assert!(matches!(realize_f64(&[1.0], &[1e-300, 1e300], Form::Controller), Err(ModelError::Overflow { .. })));
+    let a = Matrix::from_row_major(2, 3, vec![0.0; 6]).unwrap();
+    assert!(matches!(faddeev_leverrier_f64(&a, Method::Auto, true), Err(ModelError::Shape { arg: "a", .. })));
+}
