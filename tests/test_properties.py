@@ -352,8 +352,13 @@ def test_overflow_is_model_error():
     # finite data whose normalisation overflows float64
     with pytest.raises(sw.ModelError):
         sw.realize([1e300], [1e-300, 1.0])
+    # eigenvalues 1e200 (three times): c_2 = 3e400 overflows. (A full matrix of 1e200 would
+    # not do: its coefficients are exactly [1, -3e200, 0, 0].)
     with pytest.raises(sw.ModelError):
-        sw.characteristic_polynomial(np.full((3, 3), 1e200))
+        sw.characteristic_polynomial(np.diag([1e200, 1e200, 1e200]))
+    with pytest.raises(sw.ModelError):
+        sw.transfer_function(np.diag([1e200, 1e200]), np.ones((2, 1)), np.ones((1, 2)), np.zeros((1, 1)))
+    np.testing.assert_array_equal(sw.characteristic_polynomial(np.full((3, 3), 1e200)), [1.0, -3e200, 0.0, 0.0])
 
 
 # --------------------------------------------------------------------------------------
