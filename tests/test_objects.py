@@ -351,3 +351,50 @@ def test_characteristic_polynomial_input_types():
         c = sw.characteristic_polynomial(a)
         assert c.dtype == np.float64 and c.shape == (3,)
         np.testing.assert_array_equal(c, ref)
+
+
+# --------------------------------------------------------------------------------------
+# bad input to the object's methods
+# --------------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("s", [-1.0, -2.0 + 0.0j, np.array([0.5, -1.0])])
+def test_evaluate_at_a_pole_is_model_error(s):
+    # a finite result does not exist at a pole: ModelError, not inf
+    r = sw.realize([1.0], [1.0, 3.0, 2.0])
+    with pytest.raises(sw.ModelError) as err:
+        r.evaluate(s)
+    assert str(err.value).startswith("s") or "'s'" in str(err.value)
+
+
+@pytest.mark.parametrize("s", ["abc", "1+", None, np.nan, [np.inf], {"s": 1}, [[1j]], object()])
+def test_evaluate_bad_points_are_model_error(s):
+    r = sw.realize([1.0], [1.0, 3.0, 2.0])
+    with pytest.raises(sw.ModelError):
+        r.evaluate(s)
+
+
+def test_evaluate_empty_points():
+    r = sw.realize([1.0], [1.0, 3.0, 2.0])
+    assert r.evaluate(np.array([], dtype=complex)).shape == (0, 1, 1)
+
+
+@pytest.mark.parametrize(
+    "which,shape",
+    [("a", (2, 3)), ("b", (3, 1)), ("c", (1, 3)), ("d", (2, 1))],
+)
+def test_realization_constructor_shape_errors(which, shape):
+    mats = {"a": np.eye(2), "b": np.ones((2, 1)), "c": np.ones((1, 2)), "d": np.zeros((1, 1))}
+    mats[which] = np.ones(shape)
+    with pytest.raises(sw.ModelError) as err:
+        sw.Realization(mats["a"], mats["b"], mats["c"], mats["d"])
+    assert str(err.value).startswith(which + ":") or f"'{which}'" in str(err.value), str(err.value)
+
+
+def test_transform_overflow_names_t():
+    # T = 1e-320 I is finite and nonsingular, but T^-1 overflows: the error is about T,
+    # not about the realization's (finite) A
+    r = sw.realize([1.0], [1.0, 3.0, 2.0])
+    with pytest.raises(sw.ModelError) as err:
+        r.transform(np.eye(2) * 1e-320)
+    msg = str(err.value)
+    assert msg.lower().startswith("t") or "transform" in msg, msg

@@ -283,9 +283,18 @@ def test_characteristic_polynomial_float_vs_numpy(n, seed):
 
 
 def test_characteristic_polynomial_zero_by_zero():
-    # (identity) the empty matrix has characteristic polynomial 1
+    # (identity) the empty matrix has characteristic polynomial 1 and no adjugate terms
     c = sw.characteristic_polynomial(np.zeros((0, 0)))
     np.testing.assert_array_equal(c, [1.0])
+    coeffs, adj = sw.faddeev_leverrier(np.zeros((0, 0)))
+    np.testing.assert_array_equal(coeffs, [1.0])
+    assert adj.shape == (0, 0, 0)
+
+
+def test_characteristic_polynomial_zero_by_zero_exact():
+    # (identity)
+    c = sw.characteristic_polynomial(np.empty((0, 0), dtype=object), exact=True)
+    assert list(c) == [Fraction(1)]
 
 
 def test_characteristic_polynomial_methods():

@@ -202,7 +202,12 @@ class Realization:
         A complex (p, m) array for a scalar s, a (k, p, m) array for a 1-D array of k points.
         """
         a, b, c, d = self._float()
-        points = np.asarray(s, dtype=complex)
+        if s is None or isinstance(s, (str, bytes, dict, set)):
+            raise ModelError(f"s: expected a number or a 1-D array of numbers, found a {type(s).__name__}")
+        try:
+            points = np.asarray(s, dtype=complex)
+        except (TypeError, ValueError) as exc:
+            raise ModelError(f"s: cannot be read as complex points ({exc})") from None
         if points.ndim > 1:
             raise ModelError(f"s: expected a scalar or a 1-D array of points, found shape {points.shape}")
         if not np.all(np.isfinite(points)):
@@ -240,7 +245,10 @@ class Realization:
         rhs = np.hstack([a @ tm, b])
         sol = np.linalg.solve(tm, rhs) if tm.shape[0] else rhs
         n = self.n_states
-        return Realization(sol[:, :n], sol[:, n:], c @ tm, d)
+        parts = (sol[:, :n], sol[:, n:], c @ tm)
+        if not all(np.all(np.isfinite(x)) for x in parts):
+            raise ModelError("t: the transformed realization overflows float64 (T is too badly scaled)")
+        return Realization(*parts, d)
 
     def _check_transform(self, tm: np.ndarray) -> None:
         n = self.n_states

@@ -94,12 +94,17 @@ pub fn realize_f64(num: &[f64], den: &[f64], form: Form) -> Result<(StateSpace<f
     if split.den.iter().chain(&split.strict_num).any(|v| !v.is_finite()) || !split.direct.is_finite() {
         return Err(ModelError::Overflow { what: "normalising num/den by the leading denominator coefficient".into() });
     }
-    if form == Form::Modal {
+    let (ss, info) = if form == Form::Modal {
         let (ss, info) = modal::modal_from_split(&split)?;
-        Ok((ss, Some(info)))
+        (ss, Some(info))
     } else {
-        Ok((companion_from_split(&split, form)?, None))
+        (companion_from_split(&split, form)?, None)
+    };
+    // The Markov parameters of the controllability forms can overflow from finite data.
+    if [&ss.a, &ss.b, &ss.c, &ss.d].iter().any(|m| m.as_slice().iter().any(|v| !v.is_finite())) {
+        return Err(ModelError::Overflow { what: format!("the {form:?} realization of num/den") });
     }
+    Ok((ss, info))
 }
 
 /// `[[d]]` and the 0-state pieces shared by every form of a pure gain.

@@ -10,9 +10,12 @@
 //! The controllable canonical realization is balanced by a diagonal similarity of powers of
 //! two (Parlett & Reinsch 1969; exact, it changes no eigenvalue), then its eigenvalues and
 //! eigenvectors are computed by faer's real non-symmetric eigensolver (Hessenberg–QR).
-//! Each eigenvector is scaled to unit 2-norm with its largest component real and positive,
-//! and a pair `v = v_r + j v_i` contributes the columns `[v_r, v_i]`, because
-//! `A v_r = σ v_r − ω v_i` and `A v_i = ω v_r + σ v_i`.
+//! The eigenvectors (each of unit 2-norm) decide whether the form exists; a pair
+//! `v = v_r + j v_i` spans the columns `[v_r, v_i]`, because `A v_r = σ v_r − ω v_i` and
+//! `A v_i = ω v_r + σ v_i`. B and C are then taken from the companion matrix's analytic
+//! eigenvectors `[1, λ, ..., λ^(n−1)]ᵀ` at the computed poles: `C_λ = c(λ)` and
+//! `B_λ = 1 / Π_{μ≠λ}(λ − μ)`, i.e. the residues of the partial-fraction expansion, with
+//! each mode rescaled so that its B and C have equal norms.
 //!
 //! # Numerical aspects
 //! A companion matrix is nonderogatory, so a repeated pole is always defective and the
@@ -36,11 +39,12 @@ use crate::matrix::Matrix;
 use crate::poly::ProperSplit;
 use crate::state_space::StateSpace;
 use faer::prelude::*;
+use faer::c64;
 
 /// What the modal decision was made on.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ModalInfo {
-    /// 2-norm condition number of the balanced, column-normalised eigenvector matrix.
+    /// 2-norm condition number of the balanced eigenvector matrix (unit-norm eigenvectors).
     pub eigenvector_condition: f64,
     /// The refusal threshold `1 / (n √eps)` it was compared with.
     pub condition_limit: f64,
@@ -53,7 +57,7 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
         return Ok((super::gain_only(&split.direct), info));
     }
     let companion = super::controllable::controllable_canonical(split);
-    let (balanced, scale) = balance(&companion.a);
+    let (balanced, _scale) = balance(&companion.a);
     let eig = Mat::from_fn(n, n, |i, j| *balanced.get(i, j))
         .eigen()
         .map_err(|_| ModelError::NoConvergence { routine: "the eigenvalue iteration of the modal form" })?;
@@ -64,11 +68,7 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
 
     // One representative per real pole or conjugate pair, in the documented order.
     let mut chosen: Vec<usize> = (0..n).filter(|&k| values[k].1 >= 0.0).collect();
-    chosen.sort_by(|&x, &y| {
-        let (rx, wx) = values[x];
-        let (ry, wy) = values[y];
-        rx.total_cmp(&ry).then(wx.total_cmp(&wy))
-    });
+    order_modes(&mut chosen, &values);
     let mut columns: Vec<Vec<f64>> = Vec::with_capacity(n);
     let mut a = Matrix::zeros(n, n);
     for &k in &chosen {
@@ -94,16 +94,11 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
         return Err(ModelError::NoConvergence { routine: "the eigenvalue pairing of the modal form" });
     }
 
-    // Decide on the balanced basis with unit columns (its conditioning is what B and C inherit).
+    // Decide on the balanced basis with every (complex) eigenvector of unit norm: [v_r, v_i]
+    // is a unitary recombination of [v, conj v], so this is the condition number of the complex
+    // eigenvector matrix, and a double pole split into a near-real pair (v_i ≈ 0) shows up.
     let basis = Mat::from_fn(n, n, |i, j| columns[j][i]);
-    let mut unit = basis.clone();
-    for j in 0..n {
-        let norm = (0..n).map(|i| unit[(i, j)] * unit[(i, j)]).sum::<f64>().sqrt();
-        for i in 0..n {
-            unit[(i, j)] /= norm;
-        }
-    }
-    let sv = unit
+    let sv = basis
         .singular_values()
         .map_err(|_| ModelError::NoConvergence { routine: "the SVD of the modal basis" })?;
     let condition = if sv[n - 1] > 0.0 { sv[0] / sv[n - 1] } else { f64::INFINITY };
@@ -119,19 +114,59 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
         });
     }
 
-    // T = S · basis in the companion coordinates (S the balancing scale).
-    let t = Mat::from_fn(n, n, |i, j| scale[i] * basis[(i, j)]);
-    let b_companion = Mat::from_fn(n, 1, |i, _| *companion.b.get(i, 0));
-    let b_modal = t.partial_piv_lu().solve(&b_companion);
-    let c_modal: Vec<f64> = (0..n)
-        .map(|j| (0..n).map(|i| companion.c.get(0, i) * t[(i, j)]).sum())
-        .collect();
-    let b = Matrix::from_row_major(n, 1, (0..n).map(|i| b_modal[(i, 0)]).collect()).expect("n x 1");
-    let c = Matrix::from_row_major(1, n, c_modal).expect("1 x n");
+    // B and C from the companion's analytic eigenvectors v = [1, λ, ..., λ^(n−1)]ᵀ: c·v = c(λ)
+    // and (V⁻¹ e_n)_λ = 1 / a'(λ) (last column of the inverse Vandermonde matrix), with
+    // a'(λ) = Π_{μ≠λ} (λ − μ) over the computed poles. This is the residue c(λ)/a'(λ) of
+    // each mode, far more accurate than solving with the computed eigenvector matrix, whose
+    // columns carry errors of order eps·‖A‖/gap.
+    let zero_numerator = split.strict_num.iter().all(|c| *c == 0.0);
+    let all: Vec<c64> = values.iter().map(|&(re, im)| c64::new(re, im)).collect();
+    let (mut b_data, mut c_data) = (vec![0.0; n], vec![0.0; n]);
+    let mut at = 0;
+    for &k in &chosen {
+        let lambda = all[k];
+        let derivative = all.iter().enumerate().filter(|&(j, _)| j != k).fold(c64::new(1.0, 0.0), |acc, (_, &mu)| acc * (lambda - mu));
+        let beta = c64::new(1.0, 0.0) / derivative;
+        let gain = split.strict_num.iter().fold(c64::new(0.0, 0.0), |acc, &ci| acc * lambda + c64::new(ci, 0.0));
+        let (bs, cs): (Vec<f64>, Vec<f64>) = if values[k].1 == 0.0 {
+            (vec![beta.re], vec![gain.re])
+        } else {
+            // Coordinates of z v + conj(z v) in the basis [Re v, Im v] are (2 Re z, −2 Im z).
+            (vec![2.0 * beta.re, -2.0 * beta.im], vec![gain.re, gain.im])
+        };
+        // Diagonal rescaling of the mode (the transfer function keeps B·C) so |B| = |C|.
+        let (nb, nc) = (bs.iter().map(|x| x * x).sum::<f64>().sqrt(), cs.iter().map(|x| x * x).sum::<f64>().sqrt());
+        let g = if nb > 0.0 && nc > 0.0 { (nc / nb).sqrt() } else { 1.0 };
+        for (i, (bv, cv)) in bs.iter().zip(&cs).enumerate() {
+            b_data[at + i] = if zero_numerator { 0.0 } else { bv * g };
+            c_data[at + i] = cv / g;
+        }
+        at += bs.len();
+    }
+    let b = Matrix::from_row_major(n, 1, b_data).expect("n x 1");
+    let c = Matrix::from_row_major(1, n, c_data).expect("1 x n");
     if b.as_slice().iter().chain(c.as_slice()).any(|v| !v.is_finite()) {
         return Err(ModelError::Overflow { what: "the modal B and C".into() });
     }
     Ok((StateSpace { a, b, c, d: companion.d }, info))
+}
+
+/// Sorts the chosen poles by ascending real part, ties by ascending frequency. Real parts
+/// within `64 n eps max|λ|` of their neighbour count as tied: the eigensolver's roundoff must
+/// not decide the documented order of, e.g., −1, −1 ± 0.5j, −1 ± 2j.
+fn order_modes(chosen: &mut [usize], values: &[(f64, f64)]) {
+    chosen.sort_by(|&x, &y| values[x].0.total_cmp(&values[y].0));
+    let scale = values.iter().map(|(re, im)| re.hypot(*im)).fold(0.0, f64::max);
+    let tol = 64.0 * values.len() as f64 * f64::EPSILON * scale;
+    let mut start = 0;
+    while start < chosen.len() {
+        let mut end = start + 1;
+        while end < chosen.len() && values[chosen[end]].0 - values[chosen[end - 1]].0 <= tol {
+            end += 1;
+        }
+        chosen[start..end].sort_by(|&x, &y| values[x].1.total_cmp(&values[y].1));
+        start = end;
+    }
 }
 
 /// Unit 2-norm eigenvector k with its largest component real and positive, as (re, im) pairs.

@@ -101,7 +101,10 @@ pub struct CertifiedSequence {
 }
 
 impl CertifiedSequence {
-    /// Largest `bound / |value|` over everything computed (0/0 counts as 0, x/0 as ∞).
+    /// Largest bound on the error relative to the *exact* value over everything computed:
+    /// `bound / (|value| − bound)`, since `|exact| ≥ |value| − bound`; ∞ where the bound
+    /// reaches the computed value (no relative accuracy is certified there); a zero bound
+    /// counts as 0.
     pub fn worst_relative_bound(&self) -> f64 {
         let pairs = self
             .coeffs
@@ -114,7 +117,7 @@ impl CertifiedSequence {
             if *e == 0.0 {
                 continue;
             }
-            let r = if *v == 0.0 { f64::INFINITY } else { e / v.abs() };
+            let r = if *e < v.abs() { e / (v.abs() - e) } else { f64::INFINITY };
             worst = worst.max(r);
         }
         worst

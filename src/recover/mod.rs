@@ -61,7 +61,8 @@ impl FromStr for Method {
 pub struct Accuracy {
     /// "certified double-double recursion", "exact, rounded once" or "float64 recursion (unchecked)".
     pub method: &'static str,
-    /// Bound on the relative error of every returned coefficient (∞ when unchecked).
+    /// Bound on the error of every returned coefficient relative to its exact value (first
+    /// order in the unit roundoff for the recursions; ∞ where nothing can be certified).
     pub relative_error_bound: f64,
 }
 
@@ -83,6 +84,9 @@ fn check_square(a: &Matrix<f64>) -> Result<()> {
 }
 
 fn split_adjugates(flat: Vec<f64>, n: usize) -> Vec<Matrix<f64>> {
+    if n == 0 {
+        return Vec::new();
+    }
     flat.chunks(n * n).map(|c| Matrix::from_row_major(n, n, c.to_vec()).expect("n x n")).collect()
 }
 
