@@ -130,7 +130,8 @@ impl CertifiedSequence {
     }
 }
 
-/// `out = x · y` for row-major f64 (r×k) times working (k×c).
+/// `out = x · y` for row-major f64 (r×k) times working (k×c); with W = f64 it also
+/// accumulates the (nonnegative) error bounds.
 #[inline]
 fn mul_left<W: Working>(x: &[f64], y: &[W], out: &mut [W], r: usize, k: usize, c: usize) {
     out.iter_mut().for_each(|v| *v = W::from_f64(0.0));
@@ -160,24 +161,6 @@ fn mul_right<W: Working>(x: &[W], y: &[f64], out: &mut [W], r: usize, k: usize, 
                 if *yv != 0.0 {
                     *o = o.add_mul_f64(*yv, xv);
                 }
-            }
-        }
-    }
-}
-
-/// Plain f64 product for the bounds.
-#[inline]
-fn mul_f64(x: &[f64], y: &[f64], out: &mut [f64], r: usize, k: usize, c: usize) {
-    out.iter_mut().for_each(|v| *v = 0.0);
-    for i in 0..r {
-        let out_row = &mut out[i * c..(i + 1) * c];
-        for l in 0..k {
-            let xv = x[i * k + l];
-            if xv == 0.0 {
-                continue;
-            }
-            for (o, yv) in out_row.iter_mut().zip(&y[l * c..(l + 1) * c]) {
-                *o += xv * yv;
             }
         }
     }
@@ -229,7 +212,7 @@ pub fn certified_recursion<W: Working>(a: &[f64], n: usize, keep_adjugates: bool
         for (g, (e, v)) in grown.iter_mut().zip(err.iter().zip(&current)) {
             *g = e + gn * v.abs_f64();
         }
-        mul_f64(&abs_a, &grown, &mut propagated, n, n, n);
+        mul_left::<f64>(&abs_a, &grown, &mut propagated, n, n, n);
 
         let (mut trace, mut trace_abs, mut trace_err) = (zero, 0.0, 0.0);
         for i in 0..n {
@@ -247,8 +230,8 @@ pub fn certified_recursion<W: Working>(a: &[f64], n: usize, keep_adjugates: bool
             }
             mul_right(&current, b, &mut nb, n, n, m);
             mul_left(c, &nb, &mut cnb, p, n, m);
-            mul_f64(&grown2, &abs_b, &mut gb, n, n, m);
-            mul_f64(&abs_c, &gb, &mut cgb, p, n, m);
+            mul_left::<f64>(&grown2, &abs_b, &mut gb, n, n, m);
+            mul_left::<f64>(&abs_c, &gb, &mut cgb, p, n, m);
             for i in 0..p * m {
                 let v = cnb[i].add_mul_f64(d[i], ck);
                 numerator[i * (n + 1) + k] = v.to_f64();
