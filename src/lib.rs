@@ -13,6 +13,7 @@ pub mod realize;
 pub mod recover;
 pub mod scalar;
 pub mod state_space;
+pub mod structure;
 
 #[cfg(feature = "python")]
 pub mod python;

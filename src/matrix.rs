@@ -31,6 +31,7 @@ impl<T: Scalar> Matrix<T> {
     pub fn rows(&self) -> usize { self.rows }
     pub fn cols(&self) -> usize { self.cols }
     pub fn as_slice(&self) -> &[T] { &self.data }
+    pub fn as_mut_slice(&mut self) -> &mut [T] { &mut self.data }
     pub fn into_vec(self) -> Vec<T> { self.data }
 
     pub fn get(&self, i: usize, j: usize) -> &T { &self.data[i * self.cols + j] }

@@ -17,6 +17,17 @@ from ._api import (
     realize,
     transfer_function,
 )
+from ._structure import (
+    Decomposition,
+    Staircase,
+    controllability_staircase,
+    is_controllable,
+    is_observable,
+    kalman_decomposition,
+    minimal_realization,
+    observability_staircase,
+    similarity,
+)
 
 __version__ = "0.1.0"
 
@@ -29,4 +40,13 @@ __all__ = [
     "transfer_function",
     "controllability_matrix",
     "observability_matrix",
+    "Staircase",
+    "Decomposition",
+    "controllability_staircase",
+    "observability_staircase",
+    "is_controllable",
+    "is_observable",
+    "kalman_decomposition",
+    "minimal_realization",
+    "similarity",
 ]

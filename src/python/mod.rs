@@ -13,6 +13,7 @@ use crate::realize::{self, Form};
 use crate::recover::{self, Accuracy, Method};
 use crate::state_space::StateSpace;
 use crate::krylov;
+use crate::structure::{kalman, minimal, similarity, staircase};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
@@ -256,6 +257,119 @@ fn controllability_matrix_exact(py: Python<'_>, a: ExactIn, b: ExactIn) -> PyRes
     Ok(exact_out(k))
 }
 
+// ---- structure
+
+type StaircaseOut<'py> = (
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Option<Bound<'py, PyAny>>,
+    Bound<'py, PyAny>,
+    Vec<usize>,
+    usize,
+    Vec<Bound<'py, PyAny>>,
+    Vec<usize>,
+    f64,
+);
+
+fn staircase_out<'py>(py: Python<'py>, s: staircase::Staircase) -> PyResult<StaircaseOut<'py>> {
+    let c = match s.c {
+        Some(c) => Some(array2(py, c)?),
+        None => None,
+    };
+    let mut sv = Vec::with_capacity(s.steps.len());
+    let mut kept = Vec::with_capacity(s.steps.len());
+    for step in s.steps {
+        let k = step.singular_values.len();
+        sv.push(array_nd(py, step.singular_values, &[k])?);
+        kept.push(step.kept);
+    }
+    Ok((array2(py, s.a)?, array2(py, s.b)?, c, array2(py, s.q)?, s.blocks, s.rank, sv, kept, s.tol))
+}
+
+#[pyfunction]
+#[pyo3(signature = (a, b, c, tol))]
+fn controllability_staircase<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: PyReadonlyArray2<'py, f64>,
+    c: Option<PyReadonlyArray2<'py, f64>>,
+    tol: Option<f64>,
+) -> PyResult<StaircaseOut<'py>> {
+    let (a, b, c) = (matrix_from(&a), matrix_from(&b), c.as_ref().map(matrix_from));
+    let s = run(py, move || staircase::controllability_staircase(&a, &b, c.as_ref(), tol))?;
+    staircase_out(py, s)
+}
+
+#[pyfunction]
+#[pyo3(signature = (a, b, c, tol))]
+fn observability_staircase<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: Option<PyReadonlyArray2<'py, f64>>,
+    c: PyReadonlyArray2<'py, f64>,
+    tol: Option<f64>,
+) -> PyResult<StaircaseOut<'py>> {
+    let (a, b, c) = (matrix_from(&a), b.as_ref().map(matrix_from), matrix_from(&c));
+    let s = run(py, move || staircase::observability_staircase(&a, b.as_ref(), &c, tol))?;
+    staircase_out(py, s)
+}
+
+#[pyfunction]
+#[pyo3(signature = (a, b, c, d, tol))]
+fn minimal_realization<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: PyReadonlyArray2<'py, f64>,
+    c: PyReadonlyArray2<'py, f64>,
+    d: PyReadonlyArray2<'py, f64>,
+    tol: Option<f64>,
+) -> PyResult<(Quad<'py>, StaircaseOut<'py>, StaircaseOut<'py>)> {
+    let ss = model_from(&a, &b, &c, &d)?;
+    let m = run(py, move || minimal::minimal_realization(&ss, tol))?;
+    let r = m.realization;
+    Ok((
+        (array2(py, r.a)?, array2(py, r.b)?, array2(py, r.c)?, array2(py, r.d)?),
+        staircase_out(py, m.controllability)?,
+        staircase_out(py, m.observability)?,
+    ))
+}
+
+#[pyfunction]
+#[pyo3(signature = (a, b, c, d, tol))]
+fn kalman_decomposition<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: PyReadonlyArray2<'py, f64>,
+    c: PyReadonlyArray2<'py, f64>,
+    d: PyReadonlyArray2<'py, f64>,
+    tol: Option<f64>,
+) -> PyResult<(Quad<'py>, Bound<'py, PyAny>, [usize; 4], f64, f64)> {
+    let ss = model_from(&a, &b, &c, &d)?;
+    let k = run(py, move || kalman::kalman_decomposition(&ss, tol))?;
+    let r = k.realization;
+    Ok((
+        (array2(py, r.a)?, array2(py, r.b)?, array2(py, r.c)?, array2(py, r.d)?),
+        array2(py, k.t)?,
+        k.sizes,
+        k.condition,
+        k.pattern_residual,
+    ))
+}
+
+#[pyfunction]
+#[pyo3(signature = (r1, r2, tol))]
+fn similarity_transform<'py>(
+    py: Python<'py>,
+    r1: (PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>),
+    r2: (PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>),
+    tol: Option<f64>,
+) -> PyResult<(Bound<'py, PyAny>, [f64; 4], f64)> {
+    let s1 = model_from(&r1.0, &r1.1, &r1.2, &r1.3)?;
+    let s2 = model_from(&r2.0, &r2.1, &r2.2, &r2.3)?;
+    let s = run(py, move || similarity::similarity(&s1, &s2, tol))?;
+    Ok((array2(py, s.t)?, s.residuals, s.tol))
+}
+
 #[pymodule]
 fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("ModelError", m.py().get_type::<ModelError>())?;
@@ -267,6 +381,11 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(transfer_function_exact, m)?)?;
     m.add_function(wrap_pyfunction!(controllability_matrix_float, m)?)?;
     m.add_function(wrap_pyfunction!(controllability_matrix_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(controllability_staircase, m)?)?;
+    m.add_function(wrap_pyfunction!(observability_staircase, m)?)?;
+    m.add_function(wrap_pyfunction!(minimal_realization, m)?)?;
+    m.add_function(wrap_pyfunction!(kalman_decomposition, m)?)?;
+    m.add_function(wrap_pyfunction!(similarity_transform, m)?)?;
     m.add("CERTIFIED_TOLERANCE", recover::CERTIFIED_TOLERANCE)?;
     Ok(())
 }

@@ -1,0 +1,165 @@
+//! Kalman decomposition into controllable/observable parts.
+//!
+//! # Purpose
+//! A nonsingular `T = [X_1, X_2, X_3, X_4]` with `T⁻¹ A T` of the pattern
+//! `[[A11, 0, A13, 0], [A21, A22, A23, A24], [0, 0, A33, 0], [0, 0, A43, A44]]`,
+//! `T⁻¹ B = [B1; B2; 0; 0]`, `C T = [C1, 0, C3, 0]`: part 1 controllable and observable,
+//! 2 controllable and unobservable, 3 uncontrollable and observable, 4 uncontrollable and
+//! unobservable. `(A11, B1, C1, D)` is a minimal realization.
+//!
+//! # Method
+//! From orthonormal bases of three subspaces, each found by staircase passes:
+//! the controllable subspace R (controllability staircase), R ∩ N (the unobservable
+//! subspace of the controllable part, by an observability staircase on that part; since R
+//! is A-invariant this is exactly R ∩ N) and the unobservable subspace N (observability
+//! staircase). `X_1 = R ⊖ (R∩N)`, `X_2 = R∩N`, `X_4 = N ⊖ (R∩N)` (the part of N orthogonal
+//! to X_2, from an SVD) and `X_3 = (R + N)^⊥` (the orthogonal complement of the others, from
+//! an SVD). The pattern follows from the invariance of R, N and R∩N under A, `B ⊂ R` and
+//! `C N = 0`. Each block of T is orthonormal; T itself is not orthogonal in general (R and
+//! N need not be orthogonal), and no orthogonal T reaches this pattern in general.
+//!
+//! # Numerical aspects
+//! Rank decisions as in the staircase (default tol `n² eps max(‖A‖_F, ‖B‖_F)` and
+//! `n² eps max(‖A‖_F, ‖C‖_F)`). The transformed matrices are computed with an LU solve
+//! with T; the entries the pattern says are zero are set to zero and the largest of them
+//! (relative to ‖A‖, ‖B‖, ‖C‖) is reported, as is the 2-norm condition number of T, which
+//! bounds how much the solve can amplify rounding errors.
+//!
+//! # References
+//! R. E. Kalman, SIAM J. Control 1 (1963); E. G. Gilbert, "Controllability and
+//! observability in multivariable control systems", SIAM J. Control 1 (1963);
+//! P. Van Dooren, IEEE Trans. Automat. Control 26 (1981).
+
+use super::minimal::check_model;
+use super::staircase::{check_tol, controllability_staircase, default_tol, frobenius, leading_part, observability_staircase};
+use super::{columns, condition_number, from_faer, hstack, to_faer};
+use crate::error::{ModelError, Result};
+use crate::matrix::Matrix;
+use crate::state_space::StateSpace;
+use faer::prelude::*;
+
+pub struct KalmanDecomposition {
+    pub realization: StateSpace<f64>,
+    pub t: Matrix<f64>,
+    /// Dimensions of parts 1..4.
+    pub sizes: [usize; 4],
+    /// 2-norm condition number of T.
+    pub condition: f64,
+    /// Largest entry set to zero by the pattern, relative to the norm of its matrix.
+    pub pattern_residual: f64,
+}
+
+/// The first `k` left singular vectors of `m` (an orthonormal basis of its dominant range).
+fn leading_left_vectors(m: &Matrix<f64>, k: usize) -> Result<Matrix<f64>> {
+    if k == 0 || m.cols() == 0 {
+        return Ok(Matrix::zeros(m.rows(), 0));
+    }
+    let svd = to_faer(m).svd().map_err(|_| ModelError::NoConvergence { routine: "the SVD in the Kalman decomposition" })?;
+    Ok(columns(&from_faer(svd.U()), 0, k))
+}
+
+/// An orthonormal basis of the orthogonal complement of the columns of `w` (full column rank).
+fn complement(w: &Matrix<f64>) -> Result<Matrix<f64>> {
+    let n = w.rows();
+    if w.cols() == 0 {
+        return Ok(Matrix::identity(n));
+    }
+    let svd = to_faer(w).svd().map_err(|_| ModelError::NoConvergence { routine: "the SVD in the Kalman decomposition" })?;
+    Ok(columns(&from_faer(svd.U()), w.cols().min(n), n))
+}
+
+pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<KalmanDecomposition> {
+    check_model(ss)?;
+    check_tol(tol)?;
+    let n = ss.n_states();
+    let tol_c = tol.unwrap_or_else(|| default_tol(&ss.a, &ss.b));
+    let tol_o = tol.unwrap_or_else(|| default_tol(&ss.a, &ss.c));
+
+    let sc = controllability_staircase(&ss.a, &ss.b, Some(&ss.c), Some(tol_c))?;
+    let nc = sc.rank;
+    let r_basis = columns(&sc.q, 0, nc);
+    let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), nc);
+    let so = observability_staircase(&a1, Some(&b1), &c1, Some(tol_o))?;
+    let x1 = r_basis.matmul(&columns(&so.q, 0, so.rank));
+    let x2 = r_basis.matmul(&columns(&so.q, so.rank, nc));
+
+    let full_o = observability_staircase(&ss.a, Some(&ss.b), &ss.c, Some(tol_o))?;
+    let n_basis = columns(&full_o.q, full_o.rank, n);
+    // N ⊖ (R∩N): remove the X_2 components of N's basis, keep the dominant directions.
+    let projected = {
+        let coeff = x2.transpose().matmul(&n_basis);
+        let along = x2.matmul(&coeff);
+        let mut p = n_basis.clone();
+        for (v, w) in p.as_mut_slice().iter_mut().zip(along.as_slice()) {
+            *v -= w;
+        }
+        p
+    };
+    let k4 = n_basis.cols().saturating_sub(x2.cols());
+    let x4 = leading_left_vectors(&projected, k4)?;
+    let x3 = complement(&hstack(&[&x1, &x2, &x4], n))?;
+    let sizes = [x1.cols(), x2.cols(), x3.cols(), x4.cols()];
+    let t = hstack(&[&x1, &x2, &x3, &x4], n);
+    let condition = condition_number(&t)?;
+    if !condition.is_finite() || condition > 1.0 / f64::EPSILON {
+        return Err(ModelError::BadValue {
+            arg: "tol",
+            detail: format!(
+                "the subspaces found are numerically dependent (condition number of T {condition:.3e}); \
+                 the rank decisions are too close to call at this tol"
+            ),
+        });
+    }
+
+    let (mut a, mut b, mut c) = if n == 0 {
+        (ss.a.clone(), ss.b.clone(), ss.c.clone())
+    } else {
+        let lu = to_faer(&t).partial_piv_lu();
+        let at = lu.solve(to_faer(&ss.a.matmul(&t)));
+        let bt = lu.solve(to_faer(&ss.b));
+        (from_faer(at.as_ref()), from_faer(bt.as_ref()), ss.c.matmul(&t))
+    };
+    // Zero what the pattern says is zero, and report the largest such entry.
+    let [k1, k2, k3, _] = sizes;
+    let part = |i: usize| if i < k1 { 0 } else if i < k1 + k2 { 1 } else if i < k1 + k2 + k3 { 2 } else { 3 };
+    let a_zero = |pi: usize, pj: usize| match pj {
+        0 => pi >= 2,
+        1 => pi != 1,
+        2 => false,
+        _ => pi == 0 || pi == 2,
+    };
+    let mut residual: f64 = 0.0;
+    let (na, nb, nc_norm) = (frobenius(&ss.a).max(f64::MIN_POSITIVE), frobenius(&ss.b).max(f64::MIN_POSITIVE), frobenius(&ss.c).max(f64::MIN_POSITIVE));
+    for i in 0..n {
+        for j in 0..n {
+            if a_zero(part(i), part(j)) {
+                residual = residual.max(a.get(i, j).abs() / na);
+                a.set(i, j, 0.0);
+            }
+        }
+        if part(i) >= 2 {
+            for j in 0..b.cols() {
+                residual = residual.max(b.get(i, j).abs() / nb);
+                b.set(i, j, 0.0);
+            }
+        }
+    }
+    for i in 0..c.rows() {
+        for j in 0..n {
+            if part(j) == 1 || part(j) == 3 {
+                residual = residual.max(c.get(i, j).abs() / nc_norm);
+                c.set(i, j, 0.0);
+            }
+        }
+    }
+    if [&a, &b, &c].iter().any(|m| m.as_slice().iter().any(|v| !v.is_finite())) {
+        return Err(ModelError::Overflow { what: "the Kalman decomposition".into() });
+    }
+    Ok(KalmanDecomposition {
+        realization: StateSpace { a, b, c, d: ss.d.clone() },
+        t,
+        sizes,
+        condition,
+        pattern_residual: residual,
+    })
+}
