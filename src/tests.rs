@@ -172,3 +172,91 @@ fn bad_float_input_is_refused_not_panicked() {
     let a = Matrix::from_row_major(2, 3, vec![0.0; 6]).unwrap();
     assert!(matches!(faddeev_leverrier_f64(&a, Method::Auto, true), Err(ModelError::Shape { arg: "a", .. })));
 }
+
+mod structure {
+    use crate::matrix::Matrix;
+    use crate::state_space::StateSpace;
+    use crate::structure::kalman::kalman_decomposition;
+    use crate::structure::minimal::minimal_realization;
+    use crate::structure::similarity::similarity;
+    use crate::structure::staircase::{controllability_staircase, observability_staircase};
+
+    fn m(rows: usize, cols: usize, v: &[f64]) -> Matrix<f64> {
+        Matrix::from_row_major(rows, cols, v.to_vec()).unwrap()
+    }
+
+    /// A fixed orthogonal matrix: product of Givens rotations (deterministic, no RNG).
+    fn rotation(n: usize) -> Matrix<f64> {
+        let mut q = Matrix::identity(n);
+        for (k, angle) in (0..n - 1).map(|k| (k, 0.3 + 0.7 * k as f64)) {
+            let (c, s) = (angle.cos(), angle.sin());
+            let mut g = Matrix::identity(n);
+            g.set(k, k, c);
+            g.set(k, k + 1, -s);
+            g.set(k + 1, k, s);
+            g.set(k + 1, k + 1, c);
+            q = q.matmul(&g);
+        }
+        q
+    }
+
+    #[test]
+    fn planted_uncontrollable_mode_is_found_behind_a_rotation() {
+        // (identity) diag(−1, −2, −3) with B = [1; 1; 0]: mode −3 is not reachable.
+        let a0 = m(3, 3, &[-1.0, 0.0, 0.0, 0.0, -2.0, 0.0, 0.0, 0.0, -3.0]);
+        let b0 = m(3, 1, &[1.0, 1.0, 0.0]);
+        let q = rotation(3);
+        let (a, b) = (q.transpose().matmul(&a0).matmul(&q), q.transpose().matmul(&b0));
+        let s = controllability_staircase(&a, &b, None, None).unwrap();
+        assert_eq!((s.rank, s.blocks.clone()), (2, vec![1, 1]));
+        // (identity) QᵀQ = I and QᵀAQ = the returned A, with the zero block exactly zero.
+        let qtq = s.q.transpose().matmul(&s.q);
+        let id = Matrix::<f64>::identity(3);
+        assert!(qtq.as_slice().iter().zip(id.as_slice()).all(|(x, y)| (x - y).abs() < 1e-14));
+        let back = s.q.transpose().matmul(&a).matmul(&s.q);
+        assert!(back.as_slice().iter().zip(s.a.as_slice()).all(|(x, y)| (x - y).abs() < 1e-13));
+        assert_eq!((*s.a.get(2, 0), *s.a.get(2, 1), *s.b.get(2, 0)), (0.0, 0.0, 0.0));
+        assert!((s.a.get(2, 2) + 3.0).abs() < 1e-13);
+    }
+
+    #[test]
+    fn observability_is_the_dual() {
+        // (identity) observability of (A, C) = controllability of (Aᵀ, Cᵀ).
+        let a = m(3, 3, &[-1.0, 1.0, 0.0, 0.0, -2.0, 0.0, 0.0, 0.0, -3.0]);
+        let c = m(1, 3, &[1.0, 0.0, 0.0]);
+        let o = observability_staircase(&a, None, &c, None).unwrap();
+        let d = controllability_staircase(&a.transpose(), &c.transpose(), None, None).unwrap();
+        assert_eq!((o.rank, o.blocks), (d.rank, d.blocks));
+        assert_eq!(o.rank, 2);
+    }
+
+    #[test]
+    fn kalman_parts_of_a_diagonal_model() {
+        // modes −1 (c, o), −2 (c, not o), −3 (not c, o), −4 (neither) (hand)
+        let a = m(4, 4, &[-1.0, 0.0, 0.0, 0.0, 0.0, -2.0, 0.0, 0.0, 0.0, 0.0, -3.0, 0.0, 0.0, 0.0, 0.0, -4.0]);
+        let ss = StateSpace { a, b: m(4, 1, &[1.0, 1.0, 0.0, 0.0]), c: m(1, 4, &[1.0, 0.0, 1.0, 0.0]), d: m(1, 1, &[0.5]) };
+        let k = kalman_decomposition(&ss, None).unwrap();
+        assert_eq!(k.sizes, [1, 1, 1, 1]);
+        let diag: Vec<f64> = (0..4).map(|i| *k.realization.a.get(i, i)).collect();
+        for (x, y) in diag.iter().zip([-1.0, -2.0, -3.0, -4.0]) {
+            assert!((x - y).abs() < 1e-12, "{diag:?}");
+        }
+        assert!(k.condition < 10.0);
+        let min = minimal_realization(&ss, None).unwrap();
+        assert_eq!(min.realization.n_states(), 1);
+        assert!((min.realization.a.get(0, 0) + 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn similarity_recovers_a_planted_transformation() {
+        // (identity) r2 = r1.transform(T): A2 = T⁻¹A1T, B2 = T⁻¹B1, C2 = C1T.
+        let a1 = m(2, 2, &[0.0, 1.0, -2.0, -3.0]);
+        let (b1, c1, d) = (m(2, 1, &[0.0, 1.0]), m(1, 2, &[3.0, 1.0]), m(1, 1, &[0.0]));
+        let t = m(2, 2, &[2.0, 1.0, 1.0, 1.0]); // T⁻¹ = [[1, −1], [−1, 2]]
+        let ti = m(2, 2, &[1.0, -1.0, -1.0, 2.0]);
+        let r1 = StateSpace { a: a1.clone(), b: b1.clone(), c: c1.clone(), d: d.clone() };
+        let r2 = StateSpace { a: ti.matmul(&a1).matmul(&t), b: ti.matmul(&b1), c: c1.matmul(&t), d };
+        let s = similarity(&r1, &r2, None).unwrap();
+        assert!(s.t.as_slice().iter().zip(t.as_slice()).all(|(x, y)| (x - y).abs() < 1e-12));
+    }
+}
