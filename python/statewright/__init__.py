@@ -17,6 +17,8 @@ from ._api import (
     realize,
     transfer_function,
 )
+from ._interop import from_scipy, realize_expression
+from ._batch import realize_batch, transfer_function_batch
 from ._structure import (
     Decomposition,
     Staircase,
@@ -40,6 +42,8 @@ __all__ = [
     "transfer_function",
     "controllability_matrix",
     "observability_matrix",
+    "realize_batch",
+    "transfer_function_batch",
     "Staircase",
     "Decomposition",
     "controllability_staircase",
@@ -49,4 +53,6 @@ __all__ = [
     "kalman_decomposition",
     "minimal_realization",
     "similarity",
+    "realize_expression",
+    "from_scipy",
 ]

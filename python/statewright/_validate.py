@@ -19,6 +19,7 @@ from ._core import ModelError
 __all__ = [
     "float_matrix",
     "float_polynomial",
+    "float_stack",
     "exact_matrix",
     "exact_polynomial",
     "fraction_array",
@@ -35,7 +36,7 @@ def _describe(x: Any) -> str:
     return f"a {type(x).__name__}"
 
 
-def _float_array(x: Any, arg: str) -> np.ndarray:
+def _float_array(x: Any, arg: str, check_finite: bool = True) -> np.ndarray:
     if x is None or isinstance(x, _REFUSED_TYPES):
         raise ModelError(f"{arg}: expected numbers (an array, list or scalar), found {_describe(x)}")
     try:
@@ -50,8 +51,17 @@ def _float_array(x: Any, arg: str) -> np.ndarray:
         arr = np.array(raw, dtype=np.float64, order="C", copy=True)
     except (TypeError, ValueError, OverflowError) as exc:
         raise ModelError(f"{arg}: cannot be converted to float64 ({exc})") from None
-    if not np.all(np.isfinite(arr)):
+    if check_finite and not np.all(np.isfinite(arr)):
         raise ModelError(f"{arg}: contains NaN or infinity; all entries must be finite")
+    return arr
+
+
+def float_stack(x: Any, arg: str, ndim: int, shape_text: str) -> np.ndarray:
+    """A fresh float64 C-contiguous array of ``ndim`` dimensions, for batches: finiteness is
+    left to the core, which names the index of the model at fault."""
+    arr = _float_array(x, arg, check_finite=False)
+    if arr.ndim != ndim:
+        raise ModelError(f"{arg}: expected a {ndim}-D array of shape {shape_text}, found shape {arr.shape}")
     return arr
 
 

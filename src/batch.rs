@@ -1,0 +1,157 @@
+//! Batches of models: many small realizations or transfer functions in one call, in parallel.
+//!
+//! # Purpose
+//! `realize_batch`: N SISO transfer functions of one order n to N realizations in one form.
+//! `transfer_function_batch`: N state-space models of one shape to N transfer matrices.
+//!
+//! # Method
+//! Each model is computed by the same routine as a single call ([`crate::realize::realize_f64`],
+//! [`crate::recover::transfer_function_f64`] with `Method::Auto`), so batch results equal a loop
+//! of single calls bit for bit. Models are spread over the rayon thread pool; every output
+//! array is allocated once, each model writes its own disjoint slice.
+//!
+//! # Errors
+//! If any model fails, the batch fails with `ModelError::Batch { index, source }` for the
+//! smallest failing index (all models are tried, so the index does not depend on thread
+//! timing), and no output is returned.
+
+use crate::error::{ModelError, Result};
+use crate::matrix::Matrix;
+use crate::realize::{realize_f64, Form};
+use crate::recover::{transfer_function_f64, Method};
+use crate::state_space::StateSpace;
+use rayon::prelude::*;
+use std::sync::Mutex;
+
+/// Largest number of output values one batch call may allocate (2³⁰ float64 = 8 GiB).
+pub const MAX_OUTPUT_VALUES: usize = 1 << 30;
+
+/// Stacked realizations: `a` is (N, n, n), `b` (N, n, 1), `c` (N, 1, n), `d` (N, 1, 1), row-major.
+pub struct RealizationBatch {
+    pub n: usize,
+    pub a: Vec<f64>,
+    pub b: Vec<f64>,
+    pub c: Vec<f64>,
+    pub d: Vec<f64>,
+}
+
+/// Stacked transfer matrices: `num` (N, p, m, n+1), `den` (N, n+1).
+pub struct TransferBatch {
+    pub num: Vec<f64>,
+    pub den: Vec<f64>,
+}
+
+/// Keeps the failure with the smallest index.
+struct FirstError(Mutex<Option<(usize, ModelError)>>);
+
+impl FirstError {
+    fn new() -> Self {
+        FirstError(Mutex::new(None))
+    }
+    fn record(&self, index: usize, err: ModelError) {
+        let mut slot = self.0.lock().unwrap_or_else(|p| p.into_inner());
+        if slot.as_ref().is_none_or(|(i, _)| index < *i) {
+            *slot = Some((index, err));
+        }
+    }
+    fn into_result(self) -> Result<()> {
+        match self.0.into_inner().unwrap_or_else(|p| p.into_inner()) {
+            Some((index, source)) => Err(ModelError::Batch { index, source: Box::new(source) }),
+            None => Ok(()),
+        }
+    }
+}
+
+fn check_size(arg: &'static str, values: usize) -> Result<()> {
+    if values > MAX_OUTPUT_VALUES {
+        return Err(ModelError::TooLarge {
+            arg,
+            detail: format!("the result would hold {values} values (limit {MAX_OUTPUT_VALUES}); split the batch"),
+        });
+    }
+    Ok(())
+}
+
+/// `num` is (count, k) and `den` (count, n+1), row-major; every den must have a nonzero
+/// leading coefficient (all models of the batch share the order n).
+pub fn realize_batch(num: &[f64], k: usize, den: &[f64], n_plus_1: usize, count: usize, form: Form) -> Result<RealizationBatch> {
+    if n_plus_1 == 0 {
+        return Err(ModelError::ZeroPolynomial { arg: "den" });
+    }
+    if k == 0 {
+        return Err(ModelError::ZeroPolynomial { arg: "num" });
+    }
+    if k > n_plus_1 {
+        return Err(ModelError::Improper { num_degree: k - 1, den_degree: n_plus_1 - 1 });
+    }
+    let n = n_plus_1 - 1;
+    let total = count.checked_mul(n * n + 2 * n + 1).unwrap_or(usize::MAX);
+    check_size("den", total)?;
+    // Chunks must exist for every model even when n = 0, so each buffer has at least one slot
+    // per model; the padding is dropped afterwards.
+    let (na, nb) = ((n * n).max(1), n.max(1));
+    let (mut a, mut b, mut c, mut d) = (vec![0.0; count * na], vec![0.0; count * nb], vec![0.0; count * nb], vec![0.0; count]);
+    let failure = FirstError::new();
+    a.par_chunks_mut(na)
+        .zip(b.par_chunks_mut(nb))
+        .zip(c.par_chunks_mut(nb))
+        .zip(d.par_chunks_mut(1))
+        .enumerate()
+        .for_each(|(i, (((ai, bi), ci), di))| {
+            let den_i = &den[i * n_plus_1..(i + 1) * n_plus_1];
+            if den_i[0] == 0.0 {
+                failure.record(i, ModelError::BadValue {
+                    arg: "den",
+                    detail: format!("the leading coefficient is zero; every model of a batch must have order {n}"),
+                });
+                return;
+            }
+            match realize_f64(&num[i * k..(i + 1) * k], den_i, form) {
+                Ok((ss, _)) => {
+                    if n > 0 {
+                        ai.copy_from_slice(ss.a.as_slice());
+                        bi.copy_from_slice(ss.b.as_slice());
+                        ci.copy_from_slice(ss.c.as_slice());
+                    }
+                    di[0] = ss.d.as_slice()[0];
+                }
+                Err(e) => failure.record(i, e),
+            }
+        });
+    failure.into_result()?;
+    if n == 0 {
+        (a, b, c) = (Vec::new(), Vec::new(), Vec::new());
+    }
+    Ok(RealizationBatch { n, a, b, c, d })
+}
+
+/// `a` (count, n, n), `b` (count, n, m), `c` (count, p, n), `d` (count, p, m), row-major.
+pub fn transfer_function_batch(a: &[f64], b: &[f64], c: &[f64], d: &[f64], count: usize, n: usize, m: usize, p: usize) -> Result<TransferBatch> {
+    let per_num = p * m * (n + 1);
+    let total = count.checked_mul(per_num + n + 1).unwrap_or(usize::MAX);
+    check_size("a", total)?;
+    let slot = per_num.max(1); // as in realize_batch: one chunk per model even when p·m = 0
+    let (mut num, mut den) = (vec![0.0; count * slot], vec![0.0; count * (n + 1)]);
+    let failure = FirstError::new();
+    num.par_chunks_mut(slot)
+        .zip(den.par_chunks_mut(n + 1))
+        .enumerate()
+        .for_each(|(i, (num_i, den_i))| {
+            let take = |data: &[f64], rows: usize, cols: usize| {
+                Matrix::from_row_major(rows, cols, data[i * rows * cols..(i + 1) * rows * cols].to_vec()).expect("slice")
+            };
+            let ss = StateSpace { a: take(a, n, n), b: take(b, n, m), c: take(c, p, n), d: take(d, p, m) };
+            match transfer_function_f64(&ss, Method::Auto) {
+                Ok((nm, dn, _)) => {
+                    num_i[..per_num].copy_from_slice(&nm);
+                    den_i.copy_from_slice(&dn);
+                }
+                Err(e) => failure.record(i, e),
+            }
+        });
+    failure.into_result()?;
+    if per_num == 0 {
+        num = Vec::new();
+    }
+    Ok(TransferBatch { num, den })
+}
