@@ -4,7 +4,7 @@ the result."""
 
 from __future__ import annotations
 
-from typing import Any, Dict, Tuple, Union
+from typing import Any, Dict, Literal, Tuple, Union, overload
 
 import numpy as np
 
@@ -94,9 +94,9 @@ def realize(num: Any, den: Any, form: str = "controllable_canonical", *, exact: 
     if v.check_flag(exact, "exact"):
         n_in = v.exact_polynomial(num, "num")
         d_in = v.exact_polynomial(den, "den")
-        a, b, c, d = _core.realize_exact(v.to_core(n_in), v.to_core(d_in), form)
-        mats = [v.fraction_array(x, (x[0], x[1])) for x in (a, b, c, d)]
-        return Realization._trusted(*mats)
+        ea, eb, ec, ed = _core.realize_exact(v.to_core(n_in), v.to_core(d_in), form)
+        fa, fb, fc, fd = (v.fraction_array(x, (x[0], x[1])) for x in (ea, eb, ec, ed))
+        return Realization._trusted(fa, fb, fc, fd)
     (a, b, c, d), info = _core.realize_float(v.float_polynomial(num, "num"), v.float_polynomial(den, "den"), form)
     return Realization._trusted(a, b, c, d, info)
 
@@ -138,11 +138,11 @@ def faddeev_leverrier(a: Any, *, exact: bool = False, method: str = "auto") -> T
         if am.shape[0] != am.shape[1]:
             raise _core.ModelError(f"a: expected a square matrix, found shape {am.shape}")
         n = am.shape[0]
-        coeffs, adj = _core.faddeev_leverrier_exact(v.to_core(am))
+        exact_coeffs, exact_adj = _core.faddeev_leverrier_exact(v.to_core(am))
         adj_arr = np.empty((n, n, n), dtype=object)
-        for k, m in enumerate(adj):
+        for k, m in enumerate(exact_adj):
             adj_arr[k] = v.fraction_array(m, (n, n))
-        return v.fraction_array(coeffs, (n + 1,)), adj_arr
+        return v.fraction_array(exact_coeffs, (n + 1,)), adj_arr
     method = v.check_option(method, "method", METHODS)
     am = v.float_matrix(a, "a")
     if am.shape[0] != am.shape[1]:
@@ -175,6 +175,21 @@ def characteristic_polynomial(a: Any, *, exact: bool = False, method: str = "aut
     return coeffs
 
 
+@overload
+def transfer_function(
+    a: Any, b: Any, c: Any, d: Any, *, exact: bool = ..., method: str = ...,
+    return_accuracy: Literal[False] = ...,
+) -> Tuple[np.ndarray, np.ndarray]: ...
+@overload
+def transfer_function(
+    a: Any, b: Any, c: Any, d: Any, *, exact: bool = ..., method: str = ...,
+    return_accuracy: Literal[True],
+) -> Tuple[np.ndarray, np.ndarray, Dict[str, Any]]: ...
+@overload
+def transfer_function(
+    a: Any, b: Any, c: Any, d: Any, *, exact: bool = ..., method: str = ...,
+    return_accuracy: bool,
+) -> Union[Tuple[np.ndarray, np.ndarray], Tuple[np.ndarray, np.ndarray, Dict[str, Any]]]: ...
 def transfer_function(
     a: Any, b: Any, c: Any, d: Any, *, exact: bool = False, method: str = "auto",
     return_accuracy: bool = False,
@@ -230,15 +245,16 @@ def transfer_function(
         mats = [v.exact_matrix(x, name) for x, name in zip((a, b, c, d), "abcd")]
         v.check_model_shapes(*mats)
         n, p, m = mats[0].shape[0], mats[2].shape[0], mats[1].shape[1]
-        num, den = _core.transfer_function_exact(*(v.to_core(x) for x in mats))
-        result = (v.fraction_array(num, (p, m, n + 1)), v.fraction_array(den, (n + 1,)))
+        ea, eb, ec, ed = (v.to_core(x) for x in mats)
+        exact_num, exact_den = _core.transfer_function_exact(ea, eb, ec, ed)
+        result = (v.fraction_array(exact_num, (p, m, n + 1)), v.fraction_array(exact_den, (n + 1,)))
         if v.check_flag(return_accuracy, "return_accuracy"):
             return result + ({"method": "exact rational arithmetic", "relative_error_bound": 0.0},)
         return result
     method = v.check_option(method, "method", METHODS)
-    mats = [v.float_matrix(x, name) for x, name in zip((a, b, c, d), "abcd")]
-    v.check_model_shapes(*mats)
-    num, den, accuracy = _core.transfer_function_float(*mats, method)
+    fa, fb, fc, fd = (v.float_matrix(x, name) for x, name in zip((a, b, c, d), "abcd"))
+    v.check_model_shapes(fa, fb, fc, fd)
+    num, den, accuracy = _core.transfer_function_float(fa, fb, fc, fd, method)
     if v.check_flag(return_accuracy, "return_accuracy"):
         return num, den, accuracy
     return num, den

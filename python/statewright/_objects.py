@@ -4,9 +4,10 @@ from __future__ import annotations
 
 import types
 from fractions import Fraction
-from typing import Any, Iterator, Mapping, Optional, Tuple, Union
+from typing import Any, Dict, Iterator, List, Mapping, Optional, SupportsIndex, Tuple, Union, overload
 
 import numpy as np
+import numpy.typing as npt
 
 from . import _validate as v
 from ._core import ModelError
@@ -51,21 +52,43 @@ def _latex_entry(x: Any) -> str:
     return text
 
 
+def _shown(count: int) -> List[Optional[int]]:
+    """Indices shown along an axis of ``count``: all up to ``_LATEX_MAX``, else the first and
+    last ``_LATEX_MAX // 2`` with ``None`` marking the elision (so the first and last rows and
+    columns, where the canonical forms keep their coefficients, always show)."""
+    if count <= _LATEX_MAX:
+        return list(range(count))
+    half = _LATEX_MAX // 2
+    return [*range(half), None, *range(count - half, count)]
+
+
 def latex_matrix(m: np.ndarray) -> str:
-    """A bmatrix, elided past ``_LATEX_MAX`` rows or columns."""
+    """A bmatrix, elided past ``_LATEX_MAX`` rows or columns (first and last rows and columns kept)."""
     rows, cols = m.shape
     if rows == 0 or cols == 0:
         return rf"[\,]_{{{rows}\times{cols}}}"
-    show_r, show_c = min(rows, _LATEX_MAX), min(cols, _LATEX_MAX)
+    col_idx = _shown(cols)
     lines = []
-    for i in range(show_r):
-        entries = [_latex_entry(m[i, j]) for j in range(show_c)]
-        if show_c < cols:
-            entries.append(r"\cdots")
+    for i in _shown(rows):
+        if i is None:
+            entries = [r"\ddots" if j is None else r"\vdots" for j in col_idx]
+        else:
+            entries = [r"\cdots" if j is None else _latex_entry(m[i, j]) for j in col_idx]
         lines.append(" & ".join(entries))
-    if show_r < rows:
-        lines.append(" & ".join([r"\vdots"] * (show_c + (show_c < cols))))
     return r"\begin{bmatrix}" + r" \\ ".join(lines) + r"\end{bmatrix}"
+
+
+def text_matrix(m: np.ndarray) -> str:
+    """Plain text for a terminal: numpy's layout, entries aligned (Fractions too), elided like
+    the LaTeX past ``_LATEX_MAX`` rows or columns; an empty matrix says its shape."""
+    rows, cols = m.shape
+    if rows == 0 or cols == 0:
+        return f"[] (empty, {rows}x{cols})"
+    layout: Dict[str, Any] = {"max_line_width": 100, "threshold": _LATEX_MAX, "edgeitems": _LATEX_MAX // 2}
+    if m.dtype == object:
+        width = max(len(str(x)) for x in m.flat)
+        return np.array2string(m, formatter={"object": lambda x: str(x).rjust(width)}, **layout)
+    return np.array2string(m, **layout)
 
 
 class Realization:
@@ -159,7 +182,12 @@ class Realization:
     def __len__(self) -> int:
         return 4
 
-    def __getitem__(self, k: int) -> np.ndarray:
+    @overload
+    def __getitem__(self, k: SupportsIndex) -> np.ndarray: ...
+    @overload
+    def __getitem__(self, k: slice) -> Tuple[np.ndarray, ...]: ...
+
+    def __getitem__(self, k: Union[SupportsIndex, slice]) -> Union[np.ndarray, Tuple[np.ndarray, ...]]:
         return (self._a, self._b, self._c, self._d)[k]
 
     def __eq__(self, other: object) -> bool:
@@ -175,7 +203,18 @@ class Realization:
 
     # -- analysis ----------------------------------------------------------------------
     def _float(self) -> Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-        return tuple(np.asarray(x, dtype=np.float64) for x in self)  # type: ignore[return-value]
+        out = []
+        for x, name in zip(self, "abcd"):
+            try:
+                f = np.asarray(x, dtype=np.float64)
+            except OverflowError:  # an exact entry beyond the float64 range
+                f = np.full(x.shape, np.inf)
+            if x.dtype == object and not np.all(np.isfinite(f)):
+                raise ModelError(
+                    f"{name}: an exact entry is beyond the float64 range; this computation is in float64"
+                )
+            out.append(f)
+        return out[0], out[1], out[2], out[3]
 
     def poles(self) -> np.ndarray:
         """Eigenvalues of A (complex array, sorted by real part then imaginary part)."""
@@ -193,10 +232,12 @@ class Realization:
         from ._api import transfer_function
 
         if self.exact:
-            return transfer_function(*self, exact=True)
-        return transfer_function(*self, method=method)  # type: ignore[return-value]
+            result = transfer_function(*self, exact=True)
+        else:
+            result = transfer_function(*self, method=method)
+        return result[0], result[1]
 
-    def evaluate(self, s: Union[complex, np.ndarray]) -> np.ndarray:
+    def evaluate(self, s: npt.ArrayLike) -> np.ndarray:
         """The transfer matrix ``C (sI - A)^-1 B + D`` at s.
 
         A complex (p, m) array for a scalar s, a (k, p, m) array for a 1-D array of k points.
@@ -255,6 +296,45 @@ class Realization:
         if tm.shape != (n, n):
             raise ModelError(f"t: expected shape ({n}, {n}) (one row and column per state), found {tm.shape}")
 
+    # -- other libraries ---------------------------------------------------------------
+    def to_sympy(self) -> Tuple[Any, Any, Any, Any]:
+        """``(A, B, C, D)`` as four ``sympy.Matrix`` of exact ``sympy.Rational`` entries.
+
+        Exact realizations keep their fractions. Float entries become the exact rational
+        value of the float64 (``0.1`` becomes ``3602879701896397/36028797018963968``), so
+        that symbolic algebra on the result involves no further rounding; call ``.evalf()``
+        on a matrix for decimals, or realize with ``exact=True`` from decimal strings to get
+        short fractions. Needs sympy (``pip install 'statewright[interop]'``).
+
+        Examples
+        --------
+        >>> import statewright as sw
+        >>> A, B, C, D = sw.realize(["1/2"], [1, 3], exact=True).to_sympy()
+        >>> A, C
+        (Matrix([[-3]]), Matrix([[1/2]]))
+        """
+        from ._interop import realization_to_sympy
+
+        return realization_to_sympy(self)
+
+    def to_scipy(self, *, sample_time: Union[None, bool, float] = None) -> Any:
+        """A ``scipy.signal.StateSpace`` with float64 copies of the four matrices.
+
+        ``sample_time=None`` (default) gives a continuous-time system; a positive number (or
+        ``True``, unspecified) a discrete-time one with that sample time (SciPy's ``dt``).
+        Exact entries are rounded to the nearest float64. Needs SciPy
+        (``pip install 'statewright[interop]'``).
+
+        Examples
+        --------
+        >>> import statewright as sw
+        >>> sw.realize([1], [1, 2]).to_scipy().A
+        array([[-2.]])
+        """
+        from ._interop import realization_to_scipy
+
+        return realization_to_scipy(self, sample_time)
+
     # -- display -----------------------------------------------------------------------
     def _repr_latex_(self) -> str:
         parts = [rf"{name} = {latex_matrix(m)}" for name, m in zip("ABCD", self)]
@@ -266,11 +346,10 @@ class Realization:
                 f"n_outputs={self.n_outputs})")
         body = []
         for name, m in zip("ABCD", self):
-            text = np.array2string(m, max_line_width=100, threshold=200,
-                                   formatter={"object": str} if m.dtype == object else None)
-            body.append(f"{name} =\n{text}")
+            text = text_matrix(m)
+            body.append(f"{name} = {text}" if m.size == 0 else f"{name} =\n{text}")
         return head + "\n" + "\n".join(body)
 
 
-def _rebuild(a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, info: dict) -> Realization:
+def _rebuild(a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, info: Dict[str, Any]) -> Realization:
     return Realization._trusted(a, b, c, d, info)

@@ -38,15 +38,14 @@ def _tol(tol: Any) -> Optional[float]:
     return t
 
 
-def _model(a: Any, b: Any, c: Any, d: Any) -> Tuple[np.ndarray, ...]:
-    mats = tuple(v.float_matrix(x, name) for x, name in zip((a, b, c, d), "abcd"))
-    v.check_model_shapes(*mats)
-    return mats
+def _model(a: Any, b: Any, c: Any, d: Any) -> Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    fa, fb, fc, fd = (v.float_matrix(x, name) for x, name in zip((a, b, c, d), "abcd"))
+    v.check_model_shapes(fa, fb, fc, fd)
+    return fa, fb, fc, fd
 
 
-def _frozen(x: Optional[np.ndarray]) -> Optional[np.ndarray]:
-    if x is not None:
-        x.flags.writeable = False
+def _frozen(x: np.ndarray) -> np.ndarray:
+    x.flags.writeable = False
     return x
 
 
@@ -76,10 +75,13 @@ class Staircase:
 
     def __init__(self, raw: Tuple[Any, ...], kind: str) -> None:
         a, b, c, q, blocks, rank, svs, kept, tol = raw
-        self.a, self.b, self.c, self.transform = (_frozen(x) for x in (a, b, c, q))
+        self.a: np.ndarray = _frozen(a)
+        self.b: np.ndarray = _frozen(b)
+        self.c: Optional[np.ndarray] = None if c is None else _frozen(c)
+        self.transform: np.ndarray = _frozen(q)
         self.blocks: List[int] = list(blocks)
         self.rank: int = int(rank)
-        self.singular_values: List[np.ndarray] = [_frozen(s) for s in svs]  # type: ignore[misc]
+        self.singular_values: List[np.ndarray] = [_frozen(s) for s in svs]
         self.margins: List[Tuple[Optional[float], float]] = [
             (float(s[k - 1]) if k > 0 else None, float(s[k]) if k < len(s) else 0.0)
             for s, k in zip(svs, kept)
@@ -135,8 +137,8 @@ class Decomposition:
     def __init__(self, realization: Realization, transform: np.ndarray, sizes: Tuple[int, int, int, int],
                  info: Mapping[str, float]) -> None:
         self.realization = realization
-        self.transform = _frozen(transform)
-        self.sizes = tuple(int(s) for s in sizes)
+        self.transform: np.ndarray = _frozen(transform)
+        self.sizes: Tuple[int, int, int, int] = (int(sizes[0]), int(sizes[1]), int(sizes[2]), int(sizes[3]))
         self.info = types.MappingProxyType(dict(info))
 
     def minimal(self) -> Realization:
@@ -260,7 +262,7 @@ def kalman_decomposition(a: Any, b: Any, c: Any, d: Any, *, tol: Optional[float]
     mats = _model(a, b, c, d)
     (ra, rb, rc, rd), t, sizes, condition, residual = _core.kalman_decomposition(*mats, _tol(tol))
     realization = Realization._trusted(ra, rb, rc, rd)
-    return Decomposition(realization, t, tuple(sizes),  # type: ignore[arg-type]
+    return Decomposition(realization, t, (sizes[0], sizes[1], sizes[2], sizes[3]),
                          {"condition": condition, "pattern_residual": residual})
 
 
@@ -316,7 +318,7 @@ def similarity(r1: Any, r2: Any, *, tol: Optional[float] = None) -> np.ndarray:
     >>> bool(np.allclose(r1.transform(t).a, r2.a))
     True
     """
-    def parts(r: Any, name: str) -> Tuple[np.ndarray, ...]:
+    def parts(r: Any, name: str) -> Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         if isinstance(r, Realization):
             r = tuple(r)
         try:

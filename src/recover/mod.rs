@@ -103,7 +103,7 @@ fn fast_path(a: &Matrix<f64>, method: Method, with_adjugates: bool, model: Optio
         let bound = seq.worst_relative_bound();
         return Ok(Some((seq, unchecked(bound))));
     }
-    let seq = certified::certified_recursion::<double_double::DoubleDouble>(a.as_slice(), n, with_adjugates, model);
+    let seq = certified::certified_double_double(a.as_slice(), n, with_adjugates, model);
     let worst = seq.worst_relative_bound();
     if seq.is_finite() && worst <= CERTIFIED_TOLERANCE {
         let acc = Accuracy { method: "certified double-double recursion", relative_error_bound: worst + FLOAT_UNIT };
