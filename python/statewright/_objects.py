@@ -4,13 +4,16 @@ from __future__ import annotations
 
 import types
 from fractions import Fraction
-from typing import Any, Dict, Iterator, List, Mapping, Optional, SupportsIndex, Tuple, Union, overload
+from typing import TYPE_CHECKING, Any, Dict, Iterator, List, Mapping, Optional, SupportsIndex, Tuple, Union, overload
 
 import numpy as np
 import numpy.typing as npt
 
 from . import _validate as v
 from ._core import ModelError
+
+if TYPE_CHECKING:  # pragma: no cover - for annotations only
+    from ._structure import Decomposition, Staircase
 
 __all__ = ["Realization"]
 
@@ -334,6 +337,41 @@ class Realization:
         from ._interop import realization_to_scipy
 
         return realization_to_scipy(self, sample_time)
+
+    # -- structure (float data; an exact realization is converted to float64) ------------
+    def controllability_staircase(self, *, tol: Optional[float] = None) -> "Staircase":
+        """:func:`statewright.controllability_staircase` of (A, B), carrying C along."""
+        from ._structure import controllability_staircase
+
+        a, b, c, _ = self._float()
+        return controllability_staircase(a, b, c, tol=tol)
+
+    def observability_staircase(self, *, tol: Optional[float] = None) -> "Staircase":
+        """:func:`statewright.observability_staircase` of (A, C), carrying B along."""
+        from ._structure import observability_staircase
+
+        a, b, c, _ = self._float()
+        return observability_staircase(a, b, c, tol=tol)
+
+    def is_controllable(self, *, tol: Optional[float] = None) -> bool:
+        """True when the controllability staircase reaches every state."""
+        return self.controllability_staircase(tol=tol).rank == self.n_states
+
+    def is_observable(self, *, tol: Optional[float] = None) -> bool:
+        """True when the observability staircase reaches every state."""
+        return self.observability_staircase(tol=tol).rank == self.n_states
+
+    def kalman_decomposition(self, *, tol: Optional[float] = None) -> "Decomposition":
+        """:func:`statewright.kalman_decomposition` of this realization."""
+        from ._structure import kalman_decomposition
+
+        return kalman_decomposition(*self._float(), tol=tol)
+
+    def minimal_realization(self, *, tol: Optional[float] = None) -> "Realization":
+        """:func:`statewright.minimal_realization` of this realization."""
+        from ._structure import minimal_realization
+
+        return minimal_realization(*self._float(), tol=tol)
 
     # -- display -----------------------------------------------------------------------
     def _repr_latex_(self) -> str:
