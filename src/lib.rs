@@ -5,6 +5,7 @@
 //! `python` cargo feature. Every public routine returns [`ModelError`] for bad input and
 //! never panics on it.
 
+pub mod balance;
 pub mod batch;
 pub mod error;
 pub mod krylov;

@@ -245,6 +245,11 @@ def kalman_decomposition(a: Any, b: Any, c: Any, d: Any, *, tol: Optional[float]
     pattern ``[[A11, 0, A13, 0], [A21, A22, A23, A24], [0, 0, A33, 0], [0, 0, A43, A44]]``,
     ``T^-1 B = [B1; B2; 0; 0]``, ``C T = [C1, 0, C3, 0]``.
 
+    The rank decisions are made on the model balanced by an exact power-of-two diagonal
+    scaling (default tol as :func:`minimal_realization`); when the three decisions
+    (controllable subspace, unobservable subspace, and their intersection) disagree, no
+    consistent decomposition exists at that tol and ModelError says so.
+
     Returns
     -------
     Decomposition
@@ -269,8 +274,14 @@ def kalman_decomposition(a: Any, b: Any, c: Any, d: Any, *, tol: Optional[float]
 def minimal_realization(a: Any, b: Any, c: Any, d: Any, *, tol: Optional[float] = None) -> Realization:
     r"""The controllable and observable part: same transfer function, no state more than needed.
 
-    A controllability staircase keeps the controllable part, an observability staircase of
-    that part keeps its observable part; both are orthogonal. ``info`` holds
+    The model is balanced by an exact power-of-two diagonal scaling, then a
+    controllability staircase keeps the controllable part and an observability staircase of
+    that part keeps its observable part (both orthogonal). States that are unreachable or
+    unobservable in the given coordinates are always removed with the default tol
+    (``n**2 * eps * norm``, on the balanced model); an exact pole-zero cancellation hidden
+    in dense coordinates leaves a rounding-level singular value that an ill-conditioned
+    reduction can lift above the default: read the singular values in ``info`` and pass a
+    ``tol`` inside their gap. ``info`` holds
     ``"controllable_dimension"``, ``"minimal_dimension"`` and the singular values each
     decision was made on (``"controllability_singular_values"``,
     ``"observability_singular_values"``).

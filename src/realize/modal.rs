@@ -57,7 +57,7 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
         return Ok((super::gain_only(&split.direct), info));
     }
     let companion = super::controllable::controllable_canonical(split);
-    let (balanced, _scale) = balance(&companion.a);
+    let (balanced, _scale) = crate::balance::balance(&companion.a);
     let eig = Mat::from_fn(n, n, |i, j| *balanced.get(i, j))
         .eigen()
         .map_err(|_| ModelError::NoConvergence { routine: "the eigenvalue iteration of the modal form" })?;
@@ -204,53 +204,4 @@ fn closest_pair(values: &[(f64, f64)]) -> String {
         return "(none)".into();
     }
     format!("{} and {}", fmt(values[best.1]), fmt(values[best.2]))
-}
-
-/// Diagonal balancing by powers of two: returns `S⁻¹ A S` and the diagonal of S.
-///
-/// Parlett–Reinsch iteration with radix 2 (exact in floating point), at most 64 sweeps.
-pub fn balance(a: &Matrix<f64>) -> (Matrix<f64>, Vec<f64>) {
-    let n = a.rows();
-    let mut m = a.clone();
-    let mut scale = vec![1.0; n];
-    for _sweep in 0..64 {
-        let mut converged = true;
-        for i in 0..n {
-            let (mut col, mut row) = (0.0, 0.0);
-            for j in 0..n {
-                if j != i {
-                    col += m.get(j, i).abs();
-                    row += m.get(i, j).abs();
-                }
-            }
-            if col == 0.0 || row == 0.0 {
-                continue;
-            }
-            let sum = col + row;
-            let mut f = 1.0;
-            let (mut c, mut r) = (col, row);
-            while c < r / 2.0 {
-                c *= 2.0;
-                r /= 2.0;
-                f *= 2.0;
-            }
-            while c >= r * 2.0 {
-                c /= 2.0;
-                r *= 2.0;
-                f /= 2.0;
-            }
-            if (c + r) < 0.95 * sum {
-                converged = false;
-                scale[i] *= f;
-                for j in 0..n {
-                    m.set(i, j, m.get(i, j) / f);
-                    m.set(j, i, m.get(j, i) * f);
-                }
-            }
-        }
-        if converged {
-            break;
-        }
-    }
-    (m, scale)
 }

@@ -8,6 +8,9 @@
 //! unobservable. `(A11, B1, C1, D)` is a minimal realization.
 //!
 //! # Method
+//! The rank decisions and subspaces come from the model balanced by a diagonal power-of-two
+//! similarity (exact; it shrinks the rounding errors of companion-like models), mapped back
+//! and re-orthonormalised in the caller's coordinates.
 //! From orthonormal bases of three subspaces, each found by staircase passes:
 //! the controllable subspace R (controllability staircase), R ∩ N (the unobservable
 //! subspace of the controllable part, by an observability staircase on that part; since R
@@ -33,6 +36,7 @@
 use super::minimal::check_model;
 use super::staircase::{check_tol, controllability_staircase, default_tol, frobenius, leading_part, observability_staircase};
 use super::{columns, condition_number, from_faer, hstack, to_faer};
+use crate::balance::balance_model;
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
 use crate::state_space::StateSpace;
@@ -72,31 +76,62 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
     check_model(ss)?;
     check_tol(tol)?;
     let n = ss.n_states();
-    let tol_c = tol.unwrap_or_else(|| default_tol(&ss.a, &ss.b));
-    let tol_o = tol.unwrap_or_else(|| default_tol(&ss.a, &ss.c));
+    // Decisions on the balanced model (exact power-of-two scaling: smaller rounding errors
+    // for badly scaled models such as companion forms); geometry back in the caller's
+    // coordinates.
+    let (bal, scale) = balance_model(ss);
+    let tol_c = tol.unwrap_or_else(|| default_tol(&bal.a, &bal.b));
+    let tol_o = tol.unwrap_or_else(|| default_tol(&bal.a, &bal.c));
 
-    let sc = controllability_staircase(&ss.a, &ss.b, Some(&ss.c), Some(tol_c))?;
+    let sc = controllability_staircase(&bal.a, &bal.b, Some(&bal.c), Some(tol_c))?;
     let nc = sc.rank;
     let r_basis = columns(&sc.q, 0, nc);
     let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), nc);
     let so = observability_staircase(&a1, Some(&b1), &c1, Some(tol_o))?;
-    let x1 = r_basis.matmul(&columns(&so.q, 0, so.rank));
-    let x2 = r_basis.matmul(&columns(&so.q, so.rank, nc));
+    let k1 = so.rank;
+    let x2_balanced = r_basis.matmul(&columns(&so.q, so.rank, nc));
 
-    let full_o = observability_staircase(&ss.a, Some(&ss.b), &ss.c, Some(tol_o))?;
-    let n_basis = columns(&full_o.q, full_o.rank, n);
-    // N ⊖ (R∩N): remove the X_2 components of N's basis, keep the dominant directions.
-    let projected = {
-        let coeff = x2.transpose().matmul(&n_basis);
-        let along = x2.matmul(&coeff);
-        let mut p = n_basis.clone();
+    let full_o = observability_staircase(&bal.a, Some(&bal.b), &bal.c, Some(tol_o))?;
+    let n_balanced = columns(&full_o.q, full_o.rank, n);
+    // In exact arithmetic R∩N ⊂ N and R + N fits in n dimensions. Three separate rank
+    // decisions can disagree when a singular value sits near tol; then no consistent
+    // decomposition exists at this tol, and saying so beats a wrong split.
+    let (k2, dim_n) = (x2_balanced.cols(), n_balanced.cols());
+    if k2 > dim_n || k1 + dim_n > n {
+        return Err(ModelError::BadValue {
+            arg: "tol",
+            detail: format!(
+                "the rank decisions disagree at tol={tol_o:.3e}: the controllable part ({nc} states) has \
+                 {k2} unobservable states but the whole model has {dim_n} (and {k1} controllable, observable \
+                 ones); a singular value lies close to tol: inspect the staircase margins and pass a tol \
+                 inside their gap"
+            ),
+        });
+    }
+    let k4 = dim_n - k2;
+    let unscale = |m: &Matrix<f64>| -> Result<Matrix<f64>> {
+        let mut x = m.clone();
+        for i in 0..x.rows() {
+            for j in 0..x.cols() {
+                x.set(i, j, x.get(i, j) * scale[i]);
+            }
+        }
+        leading_left_vectors(&x, m.cols())
+    };
+    let r_orig = unscale(&r_basis)?;
+    let x2 = unscale(&x2_balanced)?;
+    let n_orig = unscale(&n_balanced)?;
+    // X_1 = R ⊖ (R∩N) and X_4 = N ⊖ (R∩N): remove the X_2 components, keep the dominant directions.
+    let without_x2 = |m: &Matrix<f64>| {
+        let along = x2.matmul(&x2.transpose().matmul(m));
+        let mut p = m.clone();
         for (v, w) in p.as_mut_slice().iter_mut().zip(along.as_slice()) {
             *v -= w;
         }
         p
     };
-    let k4 = n_basis.cols().saturating_sub(x2.cols());
-    let x4 = leading_left_vectors(&projected, k4)?;
+    let x1 = leading_left_vectors(&without_x2(&r_orig), k1)?;
+    let x4 = leading_left_vectors(&without_x2(&n_orig), k4)?;
     let x3 = complement(&hstack(&[&x1, &x2, &x4], n))?;
     let sizes = [x1.cols(), x2.cols(), x3.cols(), x4.cols()];
     let t = hstack(&[&x1, &x2, &x3, &x4], n);

@@ -19,7 +19,10 @@
 //! # Numerical aspects
 //! Backward stable: the result is the exact staircase form of `(A + E, B + F)` with
 //! `‖E‖, ‖F‖` of order `tol + n eps ‖(A, B)‖` (Van Dooren 1981). Default
-//! `tol = n² eps max(‖A‖_F, ‖B‖_F)`. The singular values every decision was made on are
+//! `tol = n² eps max(‖A‖_F, ‖B‖_F)`. The decisions, and so the result, are invariant under
+//! orthogonal changes of coordinates (up to rounding). [`super::minimal`] and
+//! [`super::kalman`] work on a balanced copy instead (smaller rounding errors for
+//! companion-like models). The singular values every decision was made on are
 //! kept ([`StepRecord`]), so a caller sees how close each one was. Ranks are never decided
 //! from the controllability matrix `[B, AB, ..., A^(n−1)B]`: its columns align with the
 //! dominant eigenvectors and its singular values spread like powers of the eigenvalue
@@ -106,7 +109,11 @@ fn thin_svd(rows: usize, cols: usize, at: impl Fn(usize, usize) -> f64) -> Resul
 pub fn controllability_staircase(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Matrix<f64>>, tol: Option<f64>) -> Result<Staircase> {
     check_pair(a, b, c)?;
     check_tol(tol)?;
-    let tol = tol.unwrap_or_else(|| default_tol(a, b));
+    reduce(a, b, c, tol.unwrap_or_else(|| default_tol(a, b)))
+}
+
+/// One staircase reduction with step sizes decided by `tol`.
+fn reduce(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Matrix<f64>>, tol: f64) -> Result<Staircase> {
     let (n, m) = (a.rows(), b.cols());
     let (mut a, mut b, mut c) = (a.clone(), b.clone(), c.cloned());
     let mut q = Matrix::identity(n);
@@ -166,7 +173,12 @@ pub fn observability_staircase(a: &Matrix<f64>, b: Option<&Matrix<f64>>, c: &Mat
     // Check in the caller's orientation so messages name the caller's arguments.
     check_pair(a, &b, Some(c))?;
     let dual = controllability_staircase(&a.transpose(), &c.transpose(), Some(&b.transpose()), tol)?;
-    Ok(Staircase {
+    Ok(transpose_dual(dual))
+}
+
+/// The observability form from the controllability staircase of the dual.
+fn transpose_dual(dual: Staircase) -> Staircase {
+    Staircase {
         a: dual.a.transpose(),
         b: dual.c.map(|x| x.transpose()).expect("carried along"),
         c: Some(dual.b.transpose()),
@@ -175,7 +187,7 @@ pub fn observability_staircase(a: &Matrix<f64>, b: Option<&Matrix<f64>>, c: &Mat
         rank: dual.rank,
         steps: dual.steps,
         tol: dual.tol,
-    })
+    }
 }
 
 /// True when the staircase reaches every state.
