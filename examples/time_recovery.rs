@@ -32,5 +32,55 @@ fn main() {
     for ss in &models {
         sink += certified::certified_double_double(ss.a.as_slice(), 8, false, Some(ss)).coeffs[2];
     }
+    let t2 = Instant::now();
+    let mut sink2 = 0.0;
+    for ss in &models {
+        sink2 += plain(ss.a.as_slice(), 8)[2];
+    }
+    println!("plain char poly, no bounds: {:.2} us/model ({sink2:.3})", t2.elapsed().as_secs_f64() / models.len() as f64 * 1e6);
+    let t3 = Instant::now();
+    let mut sink3 = 0.0;
+    for ss in &models {
+        sink3 += certified::certified_recursion::<f64>(ss.a.as_slice(), 8, false, None).coeffs[2];
+    }
+    println!("f64 with bounds, char poly only: {:.2} us/model ({sink3:.3})", t3.elapsed().as_secs_f64() / models.len() as f64 * 1e6);
+    let t4 = Instant::now();
+    let mut sink4 = 0.0;
+    for ss in &models {
+        sink4 += certified::certified_double_double(ss.a.as_slice(), 8, false, None).coeffs[2];
+    }
+    println!("dd with bounds, char poly only: {:.2} us/model ({sink4:.3})", t4.elapsed().as_secs_f64() / models.len() as f64 * 1e6);
     println!("dd recursion alone: {:.2} us/model ({sink:.3})", t.elapsed().as_secs_f64() / models.len() as f64 * 1e6);
+}
+
+#[allow(dead_code)]
+fn plain(a: &[f64], n: usize) -> Vec<f64> {
+    let mut cur = vec![0.0; n * n];
+    for i in 0..n {
+        cur[i * n + i] = 1.0;
+    }
+    let mut prod = vec![0.0; n * n];
+    let mut coeffs = vec![1.0];
+    for k in 1..=n {
+        prod.iter_mut().for_each(|v| *v = 0.0);
+        for i in 0..n {
+            for l in 0..n {
+                let x = a[i * n + l];
+                if x == 0.0 {
+                    continue;
+                }
+                for j in 0..n {
+                    prod[i * n + j] += x * cur[l * n + j];
+                }
+            }
+        }
+        let tr: f64 = (0..n).map(|i| prod[i * n + i]).sum();
+        let ck = -tr / k as f64;
+        for i in 0..n {
+            prod[i * n + i] += ck;
+        }
+        coeffs.push(ck);
+        std::mem::swap(&mut cur, &mut prod);
+    }
+    coeffs
 }
