@@ -97,8 +97,9 @@ def realize(num: Any, den: Any, form: str = "controllable_canonical", *, exact: 
         ea, eb, ec, ed = _core.realize_exact(v.to_core(n_in), v.to_core(d_in), form)
         fa, fb, fc, fd = (v.fraction_array(x, (x[0], x[1])) for x in (ea, eb, ec, ed))
         return Realization._trusted(fa, fb, fc, fd)
-    (a, b, c, d), info = _core.realize_float(v.float_polynomial(num, "num"), v.float_polynomial(den, "den"), form)
-    return Realization._trusted(a, b, c, d, info)
+    (a, b, c, d), info = _core.realize_float(
+        v.float_polynomial(num, "num", check_finite=False), v.float_polynomial(den, "den", check_finite=False), form)
+    return Realization._trusted(a, b, c, d, info, frozen=True)
 
 
 def faddeev_leverrier(a: Any, *, exact: bool = False, method: str = "auto") -> Tuple[np.ndarray, np.ndarray]:

@@ -34,6 +34,9 @@ def _holds_fraction(x: Any) -> bool:
     return any(isinstance(e, Fraction) for e in flat)
 
 
+_NO_INFO: Mapping[str, Any] = types.MappingProxyType({})
+
+
 def _frozen(x: np.ndarray) -> np.ndarray:
     x.flags.writeable = False
     return x
@@ -129,11 +132,14 @@ class Realization:
 
     @classmethod
     def _trusted(cls, a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray,
-                 info: Optional[Mapping[str, Any]] = None) -> "Realization":
+                 info: Optional[Mapping[str, Any]] = None, frozen: bool = False) -> "Realization":
         """Wraps arrays fresh from the core (already checked) without another copy."""
         self = cls.__new__(cls)
-        self._a, self._b, self._c, self._d = (_frozen(x) for x in (a, b, c, d))
-        self._info = types.MappingProxyType(dict(info or {}))
+        if frozen:
+            self._a, self._b, self._c, self._d = a, b, c, d
+        else:
+            self._a, self._b, self._c, self._d = (_frozen(x) for x in (a, b, c, d))
+        self._info = types.MappingProxyType(dict(info)) if info else _NO_INFO
         return self
 
     # -- the four matrices -------------------------------------------------------------

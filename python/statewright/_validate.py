@@ -76,9 +76,15 @@ def float_matrix(x: Any, arg: str) -> np.ndarray:
     return arr
 
 
-def float_polynomial(x: Any, arg: str) -> np.ndarray:
-    """A fresh 1-D float64 coefficient array (highest power first); a scalar is degree 0."""
-    arr = _float_array(x, arg)
+def float_polynomial(x: Any, arg: str, check_finite: bool = True) -> np.ndarray:
+    """A 1-D float64 coefficient array (highest power first); a scalar is degree 0.
+
+    With ``check_finite=False`` a float64 1-D array is passed through as it is (the core
+    copies it and checks finiteness itself): the fast path of single small calls.
+    """
+    if not check_finite and type(x) is np.ndarray and x.dtype == np.float64 and x.ndim == 1 and x.size:
+        return x
+    arr = _float_array(x, arg, check_finite)
     if arr.ndim == 0:
         arr = arr.reshape(1)
     if arr.ndim != 1:

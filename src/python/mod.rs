@@ -19,8 +19,7 @@ use crate::structure::{kalman, minimal, similarity, staircase};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
-use numpy::prelude::*;
-use numpy::{PyArray1, PyReadonlyArray1, PyReadonlyArray2};
+use numpy::{ndarray, PyArray, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
 use pyo3::exceptions::PyValueError;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
@@ -39,7 +38,19 @@ fn to_py(err: CoreError) -> PyErr {
 
 /// Runs `f` without the GIL, mapping core errors and (as a last resort) panics.
 fn run<T: Send>(py: Python<'_>, f: impl FnOnce() -> Result<T, CoreError> + Send) -> PyResult<T> {
-    let outcome = py.detach(|| catch_unwind(AssertUnwindSafe(f)));
+    finish(py.detach(|| catch_unwind(AssertUnwindSafe(f))))
+}
+
+/// Like [`run`] but keeps the GIL: for work of a microsecond or two, releasing and
+/// re-acquiring the GIL would cost more than it frees.
+fn run_small<T>(f: impl FnOnce() -> Result<T, CoreError>) -> PyResult<T> {
+    finish(catch_unwind(AssertUnwindSafe(f)))
+}
+
+/// States whose square below this count as small work (see [`run_small`]).
+const SMALL_ORDER: usize = 24;
+
+fn finish<T>(outcome: std::thread::Result<Result<T, CoreError>>) -> PyResult<T> {
     match outcome {
         Ok(Ok(v)) => Ok(v),
         Ok(Err(e)) => Err(to_py(e)),
@@ -60,12 +71,29 @@ fn vector_from(x: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
 }
 
 fn array2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {
-    let (r, c) = (m.rows(), m.cols());
-    Ok(PyArray1::from_vec(py, m.into_vec()).reshape([r, c])?.into_any())
+    let shape = [m.rows(), m.cols()];
+    array_nd(py, m.into_vec(), &shape)
 }
 
+/// A new C-contiguous array owning `data` (no copy, no Python-level reshape).
 fn array_nd<'py>(py: Python<'py>, data: Vec<f64>, shape: &[usize]) -> PyResult<Bound<'py, PyAny>> {
-    Ok(PyArray1::from_vec(py, data).reshape(shape.to_vec())?.into_any())
+    let owned = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(shape), data)
+        .map_err(|e| ModelError::new_err(format!("internal error: result shape ({e})")))?;
+    Ok(PyArray::from_owned_array(py, owned).into_any())
+}
+
+/// As [`array2`], marked read-only (the arrays of a frozen Realization).
+fn frozen2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {
+    let shape = [m.rows(), m.cols()];
+    let owned = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(&shape), m.into_vec())
+        .map_err(|e| ModelError::new_err(format!("internal error: result shape ({e})")))?;
+    let arr = PyArray::from_owned_array(py, owned);
+    // SAFETY: the array was created just above and is not shared yet; clearing the
+    // WRITEABLE flag is what numpy's own `setflags(write=False)` does.
+    unsafe {
+        (*arr.as_array_ptr()).fields.flags &= !numpy::npyffi::NPY_ARRAY_WRITEABLE;
+    }
+    Ok(arr.into_any())
 }
 
 fn accuracy_dict<'py>(py: Python<'py>, acc: &Accuracy) -> PyResult<Bound<'py, PyDict>> {
@@ -100,16 +128,28 @@ fn realize_float<'py>(
     num: PyReadonlyArray1<'py, f64>,
     den: PyReadonlyArray1<'py, f64>,
     form: &str,
-) -> PyResult<(Quad<'py>, Bound<'py, PyDict>)> {
+) -> PyResult<(Quad<'py>, Option<Bound<'py, PyDict>>)> {
     let form = parse_form(form)?;
-    let (num, den) = (vector_from(&num), vector_from(&den));
-    let (ss, modal) = run(py, move || realize::realize_f64(&num, &den, form))?;
-    let info = PyDict::new(py);
-    if let Some(m) = modal {
-        info.set_item("eigenvector_condition", m.eigenvector_condition)?;
-        info.set_item("condition_limit", m.condition_limit)?;
-    }
-    Ok(((array2(py, ss.a)?, array2(py, ss.b)?, array2(py, ss.c)?, array2(py, ss.d)?), info))
+    let small = match (num.as_slice(), den.as_slice()) {
+        (Ok(n), Ok(d)) if d.len() < SMALL_ORDER => Some((n, d)),
+        _ => None,
+    };
+    let (ss, modal) = if let Some((num, den)) = small {
+        run_small(|| realize::realize_f64(num, den, form))?
+    } else {
+        let (num, den) = (vector_from(&num), vector_from(&den));
+        run(py, move || realize::realize_f64(&num, &den, form))?
+    };
+    let info = match modal {
+        Some(m) => {
+            let info = PyDict::new(py);
+            info.set_item("eigenvector_condition", m.eigenvector_condition)?;
+            info.set_item("condition_limit", m.condition_limit)?;
+            Some(info)
+        }
+        None => None,
+    };
+    Ok(((frozen2(py, ss.a)?, frozen2(py, ss.b)?, frozen2(py, ss.c)?, frozen2(py, ss.d)?), info))
 }
 
 #[pyfunction]
