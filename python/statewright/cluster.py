@@ -1,0 +1,112 @@
+"""Batches on a Dask cluster: the batch functions mapped over chunks of models.
+
+Each chunk of rows (models) becomes one task that calls :func:`statewright.realize_batch`
+or :func:`statewright.transfer_function_batch` on a worker, so the same code runs on a
+laptop's ``LocalCluster`` or on a real cluster (point a ``dask.distributed.Client`` at its
+scheduler). Dask is optional: ``pip install "dask[array,distributed]"``.
+
+>>> import dask.array as da, numpy as np, statewright as sw
+>>> from statewright.cluster import realize_batch_dask
+>>> num = da.from_array(np.array([[1.0, 3.0], [2.0, 0.0]]), chunks=(1, 2))
+>>> den = da.from_array(np.array([[1.0, 3.0, 2.0], [1.0, 0.0, 4.0]]), chunks=(1, 3))
+>>> A, B, C, D = realize_batch_dask(num, den)
+>>> A.compute(scheduler="synchronous").shape
+(2, 2, 2)
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Any, Callable, Tuple
+
+import numpy as np
+
+from ._batch import realize_batch, transfer_function_batch
+from ._core import ModelError
+
+__all__ = ["realize_batch_dask", "transfer_function_batch_dask"]
+
+_INDEX = re.compile(r"^model (\d+) of the batch")
+
+
+def _import_dask() -> Any:
+    try:
+        import dask
+        import dask.array as da
+    except ImportError:  # pragma: no cover - depends on the environment
+        raise ModelError('dask is not installed; pip install "dask[array,distributed]"') from None
+    return dask, da
+
+
+def _offset_errors(fn: Callable[..., Any], start: int) -> Callable[..., Any]:
+    """Runs ``fn`` on one chunk; a failing model is named by its index in the whole batch."""
+    def run(*args: Any) -> Any:
+        try:
+            return fn(*args)
+        except ModelError as err:
+            text = _INDEX.sub(lambda m: f"model {int(m.group(1)) + start} of the batch", str(err))
+            raise ModelError(text) from None
+    return run
+
+
+def _rows(x: Any, da: Any, chunks: Any = None) -> Any:
+    """A dask array chunked along the first axis only."""
+    arr = x if isinstance(x, da.Array) else da.from_array(np.asarray(x, dtype=float), chunks=-1)
+    arr = arr.astype(float)
+    spec = {i: -1 for i in range(1, arr.ndim)}
+    if chunks is not None:
+        spec[0] = chunks
+    return arr.rechunk(spec)
+
+
+def realize_batch_dask(num: Any, den: Any, form: str = "controllable_canonical") -> Tuple[Any, Any, Any, Any]:
+    """:func:`statewright.realize_batch` over the row chunks of dask arrays.
+
+    Parameters
+    ----------
+    num : (N, k) dask or numpy array
+    den : (N, n + 1) dask or numpy array (rechunked to ``num``'s row chunks)
+    form : str
+
+    Returns
+    -------
+    A, B, C, D : dask arrays of shapes (N, n, n), (N, n, 1), (N, 1, n), (N, 1, 1)
+        Lazy; compute them together (``dask.compute(A, B, C, D)``) so each chunk runs once.
+    """
+    dask, da = _import_dask()
+    num = _rows(num, da)
+    den = _rows(den, da, num.chunks[0])
+    if num.ndim != 2 or den.ndim != 2:
+        raise ModelError(f"num, den: expected 2-D arrays (N, k) and (N, n + 1), found {num.shape} and {den.shape}")
+    n = den.shape[1] - 1
+    outs: Tuple[list, list, list, list] = ([], [], [], [])
+    start = 0
+    for nb, db, rows in zip(num.to_delayed().ravel(), den.to_delayed().ravel(), num.chunks[0]):
+        part = dask.delayed(_offset_errors(realize_batch, start), nout=4)(nb, db, form)
+        for out, piece, shape in zip(outs, part, ((rows, n, n), (rows, n, 1), (rows, 1, n), (rows, 1, 1))):
+            out.append(da.from_delayed(piece, shape=shape, dtype=float))
+        start += rows
+    return tuple(da.concatenate(o, axis=0) for o in outs)  # type: ignore[return-value]
+
+
+def transfer_function_batch_dask(a: Any, b: Any, c: Any, d: Any) -> Tuple[Any, Any]:
+    """:func:`statewright.transfer_function_batch` over the row chunks of dask arrays.
+
+    ``a`` (N, n, n), ``b`` (N, n, m), ``c`` (N, p, n), ``d`` (N, p, m); returns lazy
+    ``num`` (N, p, m, n + 1) and ``den`` (N, n + 1).
+    """
+    dask, da = _import_dask()
+    a = _rows(a, da)
+    b, c, d = (_rows(x, da, a.chunks[0]) for x in (b, c, d))
+    if not (a.ndim == b.ndim == c.ndim == d.ndim == 3):
+        raise ModelError("a, b, c, d: expected 3-D stacks (N, n, n), (N, n, m), (N, p, n), (N, p, m)")
+    n, m, p = a.shape[1], b.shape[2], c.shape[1]
+    nums, dens = [], []
+    start = 0
+    for ab, bb, cb, db, rows in zip(a.to_delayed().ravel(), b.to_delayed().ravel(), c.to_delayed().ravel(),
+                                    d.to_delayed().ravel(), a.chunks[0]):
+        part = dask.delayed(_offset_errors(transfer_function_batch, start), nout=2)(ab, bb, cb, db)
+        nums.append(da.from_delayed(part[0], shape=(rows, p, m, n + 1), dtype=float))
+        dens.append(da.from_delayed(part[1], shape=(rows, n + 1), dtype=float))
+        start += rows
+    return da.concatenate(nums, axis=0), da.concatenate(dens, axis=0)
