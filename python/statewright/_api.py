@@ -72,7 +72,8 @@ def realize(num: Any, den: Any, form: str = "controllable_canonical", *, exact: 
     ModelError
         Empty ``num`` or ``den``; zero ``den``; improper transfer function; NaN or
         infinity; unknown ``form``; ``modal`` with repeated (defective) poles or with
-        ``exact=True``; a float in exact mode.
+        ``exact=True``; a float in exact mode; an order above 4096 (1024 for ``modal``),
+        refused before anything of that size is allocated.
 
     Notes
     -----
@@ -233,7 +234,12 @@ def transfer_function(
     Raises
     ------
     ModelError
-        Shapes that do not fit, NaN or infinity, a result outside the float64 range.
+        Shapes that do not fit, NaN or infinity, a result outside the float64 range; an
+        order above 256 (the recursion costs about n**4 operations); with
+        ``method="auto"``, an order above 64 whose double-double result cannot be certified
+        (the exact fallback is limited to order 64: ``method="exact"`` forces it,
+        ``method="recursion"`` returns the unchecked float64 value). ``exact=True`` is
+        limited to order 64.
 
     Examples
     --------

@@ -273,8 +273,22 @@ fn realize_exact(py: Python<'_>, num: ExactIn, den: ExactIn, form: &str) -> PyRe
     Ok((exact_out(ss.a), exact_out(ss.b), exact_out(ss.c), exact_out(ss.d)))
 }
 
+/// Largest order of the exact rational recursion (n⁴ big-number operations).
+const MAX_EXACT_ORDER: usize = 64;
+
+fn check_exact_order(n: usize) -> PyResult<()> {
+    if n > MAX_EXACT_ORDER {
+        return Err(to_py(CoreError::TooLarge {
+            arg: "a",
+            detail: format!("order {n} exceeds the limit {MAX_EXACT_ORDER} of the exact rational recursion"),
+        }));
+    }
+    Ok(())
+}
+
 #[pyfunction]
 fn faddeev_leverrier_exact(py: Python<'_>, a: ExactIn) -> PyResult<(ExactOut, Vec<ExactOut>)> {
+    check_exact_order(a.0)?;
     let a = exact_matrix("a", a)?;
     if a.rows() != a.cols() {
         return Err(to_py(CoreError::Shape { arg: "a", expected: "a square matrix".into(), found: format!("shape ({}, {})", a.rows(), a.cols()) }));
@@ -285,6 +299,7 @@ fn faddeev_leverrier_exact(py: Python<'_>, a: ExactIn) -> PyResult<(ExactOut, Ve
 
 #[pyfunction]
 fn transfer_function_exact(py: Python<'_>, a: ExactIn, b: ExactIn, c: ExactIn, d: ExactIn) -> PyResult<(ExactOut, ExactOut)> {
+    check_exact_order(a.0)?;
     let ss = StateSpace::new(exact_matrix("a", a)?, exact_matrix("b", b)?, exact_matrix("c", c)?, exact_matrix("d", d)?)
         .map_err(to_py)?;
     let (num, den) = run(py, move || Ok(recover::faddeev_leverrier::transfer_function(&ss)))?;

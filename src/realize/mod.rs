@@ -18,7 +18,7 @@ pub mod krylov;
 pub mod modal;
 
 use crate::error::{ModelError, Result};
-use crate::poly::{split_proper, ProperSplit};
+use crate::poly::{split_proper, strip_leading_zeros, ProperSplit};
 use crate::scalar::Scalar;
 use crate::state_space::StateSpace;
 use crate::matrix::Matrix;
@@ -34,6 +34,22 @@ pub enum Form {
     Controllability,
     Observability,
     Modal,
+}
+
+/// Largest order realized (an n×n A of float64 takes 8 n² bytes: 128 MiB here).
+pub const MAX_ORDER: usize = 4096;
+/// Largest order of the modal form (a dense eigen-decomposition, O(n³)).
+pub const MAX_MODAL_ORDER: usize = 1024;
+
+/// Refuses orders above `limit` before anything of that size is allocated.
+pub(crate) fn check_order(n: usize, limit: usize, what: &str) -> Result<()> {
+    if n > limit {
+        return Err(ModelError::TooLarge {
+            arg: "den",
+            detail: format!("order {n} exceeds the limit {limit} for {what}"),
+        });
+    }
+    Ok(())
 }
 
 pub const FORM_NAMES: &str = "'controllable_canonical', 'observable_canonical', 'controller', \
@@ -63,6 +79,7 @@ impl FromStr for Form {
 /// # Errors
 /// Those of [`split_proper`]; `BadOption` for `Form::Modal` (use [`modal::realize_modal`]).
 pub fn realize_companion<T: Scalar>(num: &[T], den: &[T], form: Form) -> Result<StateSpace<T>> {
+    check_order(strip_leading_zeros(den).len().saturating_sub(1), MAX_ORDER, "a realization")?;
     let split = split_proper(num, den)?;
     companion_from_split(&split, form)
 }
@@ -90,6 +107,8 @@ pub fn companion_from_split<T: Scalar>(split: &ProperSplit<T>, form: Form) -> Re
 pub fn realize_f64(num: &[f64], den: &[f64], form: Form) -> Result<(StateSpace<f64>, Option<modal::ModalInfo>)> {
     crate::error::require_finite("num", num)?;
     crate::error::require_finite("den", den)?;
+    let order = strip_leading_zeros(den).len().saturating_sub(1);
+    check_order(order, if form == Form::Modal { MAX_MODAL_ORDER } else { MAX_ORDER }, "a realization in this form")?;
     let split = split_proper(num, den)?;
     if split.den.iter().chain(&split.strict_num).any(|v| !v.is_finite()) || !split.direct.is_finite() {
         return Err(ModelError::Overflow { what: "normalising num/den by the leading denominator coefficient".into() });

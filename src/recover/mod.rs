@@ -28,6 +28,36 @@ use std::str::FromStr;
 /// must certify to be accepted: 2⁻⁵⁶ ≈ 1.4e-17, an eighth of float64's unit roundoff.
 pub const CERTIFIED_TOLERANCE: f64 = 1.0 / 72_057_594_037_927_936.0;
 
+/// Largest order the recursion accepts (it costs about n⁴ operations: a few seconds in
+/// double-double at this size).
+pub const MAX_RECURSION_ORDER: usize = 256;
+/// Largest order for which `Method::Auto` falls back to the exact recursion (big-integer
+/// cost grows like n⁵·bits; about a second here with spread data).
+pub const MAX_EXACT_FALLBACK_ORDER: usize = 64;
+
+fn check_recursion_order(n: usize) -> Result<()> {
+    if n > MAX_RECURSION_ORDER {
+        return Err(ModelError::TooLarge {
+            arg: "a",
+            detail: format!("order {n} exceeds the limit {MAX_RECURSION_ORDER} of the Faddeev–LeVerrier recursion (n⁴ cost)"),
+        });
+    }
+    Ok(())
+}
+
+/// `Method::Auto` when the double-double bound does not certify and the exact fallback would
+/// take too long: refuse rather than return an uncertified value silently.
+fn uncertified(n: usize) -> ModelError {
+    ModelError::BadValue {
+        arg: "method",
+        detail: format!(
+            "the certified double-double recursion could not certify this order-{n} model and the exact \
+             fallback is limited to order {MAX_EXACT_FALLBACK_ORDER}; method='exact' forces it (slow), \
+             method='recursion' returns the unchecked float64 result"
+        ),
+    }
+}
+
 /// float64's unit roundoff, the error of the final rounding.
 const FLOAT_UNIT: f64 = f64::EPSILON / 2.0;
 
@@ -116,9 +146,13 @@ fn fast_path(a: &Matrix<f64>, method: Method, with_adjugates: bool, model: Optio
 pub fn faddeev_leverrier_f64(a: &Matrix<f64>, method: Method, with_adjugates: bool) -> Result<(Vec<f64>, Vec<Matrix<f64>>, Accuracy)> {
     check_square(a)?;
     let n = a.rows();
+    check_recursion_order(n)?;
     if method != Method::Exact {
         if let Some((seq, acc)) = fast_path(a, method, with_adjugates, None)? {
             return Ok((seq.coeffs, split_adjugates(seq.adjugates, n), acc));
+        }
+        if n > MAX_EXACT_FALLBACK_ORDER {
+            return Err(uncertified(n));
         }
     }
     let (coeffs, adj) = dyadic::faddeev_leverrier_dyadic(a, with_adjugates)?;
@@ -130,9 +164,14 @@ pub fn transfer_function_f64(ss: &StateSpace<f64>, method: Method) -> Result<(Ve
     for (arg, m) in [("a", &ss.a), ("b", &ss.b), ("c", &ss.c), ("d", &ss.d)] {
         require_finite(arg, m.as_slice())?;
     }
+    let n = ss.n_states();
+    check_recursion_order(n)?;
     if method != Method::Exact {
         if let Some((seq, acc)) = fast_path(&ss.a, method, false, Some(ss))? {
             return Ok((seq.numerator, seq.coeffs, acc));
+        }
+        if n > MAX_EXACT_FALLBACK_ORDER {
+            return Err(uncertified(n));
         }
     }
     let (num, den) = dyadic::transfer_function_dyadic(ss)?;
