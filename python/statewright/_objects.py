@@ -34,7 +34,7 @@ def _holds_fraction(x: Any) -> bool:
     return any(isinstance(e, Fraction) for e in flat)
 
 
-_NO_INFO: Mapping[str, Any] = types.MappingProxyType({})
+_NO_INFO: "types.MappingProxyType[str, Any]" = types.MappingProxyType({})
 
 
 def _frozen(x: np.ndarray) -> np.ndarray:

@@ -16,18 +16,15 @@ scheduler). Dask is optional: ``pip install "dask[array,distributed]"``.
 
 from __future__ import annotations
 
-import re
-from typing import Any, Callable, Tuple
+from typing import Any, List, Tuple
 
 import numpy as np
 
+from ._batch import offset_errors as _offset_errors
 from ._batch import realize_batch, transfer_function_batch
 from ._core import ModelError
 
 __all__ = ["realize_batch_dask", "transfer_function_batch_dask"]
-
-_INDEX = re.compile(r"^model (\d+) of the batch")
-
 
 def _import_dask() -> Any:
     try:
@@ -36,17 +33,6 @@ def _import_dask() -> Any:
     except ImportError:  # pragma: no cover - depends on the environment
         raise ModelError('dask is not installed; pip install "dask[array,distributed]"') from None
     return dask, da
-
-
-def _offset_errors(fn: Callable[..., Any], start: int) -> Callable[..., Any]:
-    """Runs ``fn`` on one chunk; a failing model is named by its index in the whole batch."""
-    def run(*args: Any) -> Any:
-        try:
-            return fn(*args)
-        except ModelError as err:
-            text = _INDEX.sub(lambda m: f"model {int(m.group(1)) + start} of the batch", str(err))
-            raise ModelError(text) from None
-    return run
 
 
 def _rows(x: Any, da: Any, chunks: Any = None) -> Any:
@@ -79,14 +65,14 @@ def realize_batch_dask(num: Any, den: Any, form: str = "controllable_canonical")
     if num.ndim != 2 or den.ndim != 2:
         raise ModelError(f"num, den: expected 2-D arrays (N, k) and (N, n + 1), found {num.shape} and {den.shape}")
     n = den.shape[1] - 1
-    outs: Tuple[list, list, list, list] = ([], [], [], [])
+    outs: Tuple[List[Any], List[Any], List[Any], List[Any]] = ([], [], [], [])
     start = 0
     for nb, db, rows in zip(num.to_delayed().ravel(), den.to_delayed().ravel(), num.chunks[0]):
         part = dask.delayed(_offset_errors(realize_batch, start), nout=4)(nb, db, form)
         for out, piece, shape in zip(outs, part, ((rows, n, n), (rows, n, 1), (rows, 1, n), (rows, 1, 1))):
             out.append(da.from_delayed(piece, shape=shape, dtype=float))
         start += rows
-    return tuple(da.concatenate(o, axis=0) for o in outs)  # type: ignore[return-value]
+    return tuple(da.concatenate(o, axis=0) for o in outs)
 
 
 def transfer_function_batch_dask(a: Any, b: Any, c: Any, d: Any) -> Tuple[Any, Any]:
