@@ -33,6 +33,13 @@ def test_usage_type_checks_under_strict_mypy(cache_dir):
     assert out.returncode == 0, f"mypy --strict {USAGE.name}:\n{out.stdout}{out.stderr}"  # (mypy --strict)
 
 
+def test_package_sources_type_check_under_strict_mypy(cache_dir):
+    # the package's own Python sources (the stubs of the compiled core included)
+    package = TESTS.parent / "python" / "statewright"
+    out = _mypy(package, cache_dir)
+    assert out.returncode == 0, f"mypy --strict python/statewright:\n{out.stdout}{out.stderr}"  # (mypy --strict)
+
+
 def test_wrong_usage_is_rejected(cache_dir, tmp_path):
     # negative control: the check sees statewright's real types, not Any
     bad = tmp_path / "wrong_usage.py"
