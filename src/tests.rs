@@ -260,3 +260,106 @@ mod structure {
         assert!(s.t.as_slice().iter().zip(t.as_slice()).all(|(x, y)| (x - y).abs() < 1e-12));
     }
 }
+
+/// Property harness on the core's entry points: random, often malformed input (NaN, inf,
+/// huge and tiny magnitudes, zeros, mismatched shapes) must give `Ok` or a `ModelError`,
+/// never a panic, and every `Ok` float result must be finite. Deterministic generator, so a
+/// failure reproduces; raise `CASES` for a longer run.
+mod harness {
+    use crate::batch::{realize_batch, transfer_function_batch};
+    use crate::matrix::Matrix;
+    use crate::realize::{realize_f64, Form};
+    use crate::recover::{faddeev_leverrier_f64, transfer_function_f64, Method};
+    use crate::state_space::StateSpace;
+    use crate::structure::kalman::kalman_decomposition;
+    use crate::structure::minimal::minimal_realization;
+    use crate::structure::similarity::similarity;
+    use crate::structure::staircase::{controllability_staircase, observability_staircase};
+
+    const CASES: usize = 1500;
+
+    struct Rng(u64);
+    impl Rng {
+        fn next(&mut self) -> u64 {
+            self.0 = self.0.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            self.0 >> 11
+        }
+        fn below(&mut self, n: usize) -> usize {
+            (self.next() % n as u64) as usize
+        }
+        fn value(&mut self) -> f64 {
+            match self.below(12) {
+                0 => 0.0,
+                1 => f64::NAN,
+                2 => f64::INFINITY,
+                3 => 1e300,
+                4 => -1e-300,
+                5 => 1.0,
+                6 => -2.0,
+                7 => f64::MIN_POSITIVE,
+                _ => (self.next() as f64 / (1u64 << 53) as f64) * 20.0 - 10.0,
+            }
+        }
+        fn vec(&mut self, len: usize) -> Vec<f64> {
+            (0..len).map(|_| self.value()).collect()
+        }
+        fn matrix(&mut self, r: usize, c: usize) -> Matrix<f64> {
+            let v = self.vec(r * c);
+            Matrix::from_row_major(r, c, v).unwrap()
+        }
+    }
+
+    fn finite(m: &[f64]) -> bool {
+        m.iter().all(|v| v.is_finite())
+    }
+
+    #[test]
+    fn core_entry_points_never_panic() {
+        let forms = [
+            Form::ControllableCanonical,
+            Form::ObservableCanonical,
+            Form::Controller,
+            Form::Observer,
+            Form::Controllability,
+            Form::Observability,
+            Form::Modal,
+        ];
+        let mut rng = Rng(2026);
+        for _ in 0..CASES {
+            let (kn, kd) = (rng.below(6), rng.below(6));
+            let (num, den) = (rng.vec(kn), rng.vec(kd));
+            let form = forms[rng.below(forms.len())];
+            if let Ok((ss, _)) = realize_f64(&num, &den, form) {
+                assert!(finite(ss.a.as_slice()) && finite(ss.b.as_slice()) && finite(ss.c.as_slice()));
+            }
+            let n = rng.below(5);
+            let (m, p) = (rng.below(3), rng.below(3));
+            // Shapes are right most of the time, wrong sometimes.
+            let bad = rng.below(5) == 0;
+            let a = rng.matrix(n, if bad { n + 1 } else { n });
+            let b = rng.matrix(n, m);
+            let c = rng.matrix(p, n);
+            let d = rng.matrix(p, m);
+            let method = [Method::Auto, Method::Exact, Method::Recursion][rng.below(3)];
+            if let Ok((coeffs, _, _)) = faddeev_leverrier_f64(&a, method, rng.below(2) == 0) {
+                assert!(finite(&coeffs));
+            }
+            let _ = controllability_staircase(&a, &b, Some(&c), None);
+            let _ = observability_staircase(&a, Some(&b), &c, None);
+            if let Ok(ss) = StateSpace::new(a.clone(), b.clone(), c.clone(), d.clone()) {
+                if let Ok((nm, dn, _)) = transfer_function_f64(&ss, method) {
+                    assert!(finite(&nm) && finite(&dn));
+                }
+                let _ = minimal_realization(&ss, None);
+                let _ = kalman_decomposition(&ss, None);
+                let _ = similarity(&ss, &ss, None);
+                let _ = transfer_function_batch(a.as_slice(), b.as_slice(), c.as_slice(), d.as_slice(), 1, n, m, p);
+            }
+            let k = num.len().max(1);
+            let d1 = den.len().max(1);
+            if num.len() == k && den.len() == d1 {
+                let _ = realize_batch(&num, k, &den, d1, 1, form);
+            }
+        }
+    }
+}
