@@ -226,13 +226,28 @@ def observability_staircase(a: Any, b: Any, c: Any, *, tol: Optional[float] = No
 
 def is_controllable(a: Any, b: Any, *, tol: Optional[float] = None) -> bool:
     """True when the controllability staircase reaches every state (never decided from the
-    rank of the controllability matrix)."""
+    rank of the controllability matrix).
+
+    Examples
+    --------
+    >>> import numpy as np, statewright as sw
+    >>> a = np.diag([-1.0, -2.0])
+    >>> sw.is_controllable(a, [[1.0], [1.0]]), sw.is_controllable(a, [[1.0], [0.0]])
+    (True, False)
+    """
     s = controllability_staircase(a, b, tol=tol)
     return s.rank == s.n_states
 
 
 def is_observable(a: Any, c: Any, *, tol: Optional[float] = None) -> bool:
-    """True when the observability staircase reaches every state."""
+    """True when the observability staircase reaches every state.
+
+    Examples
+    --------
+    >>> import numpy as np, statewright as sw
+    >>> sw.is_observable(np.diag([-1.0, -2.0]), [[1.0, 0.0]])     # mode -2 is not seen
+    False
+    """
     s = observability_staircase(a, None, c, tol=tol)
     return s.rank == s.n_states
 
