@@ -8,6 +8,8 @@
 pub mod balance;
 pub mod batch;
 pub mod error;
+pub mod gramian;
+pub mod identify;
 pub mod krylov;
 pub mod matrix;
 pub mod poly;

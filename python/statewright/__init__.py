@@ -18,6 +18,7 @@ from ._api import (
     transfer_function,
 )
 from ._interop import from_scipy, realize_expression
+from ._identify import balanced_realization, gramians, hankel_singular_values, realize_markov
 from ._batch import realize_batch, transfer_function_batch
 from ._structure import (
     Decomposition,
@@ -53,6 +54,10 @@ __all__ = [
     "kalman_decomposition",
     "minimal_realization",
     "similarity",
+    "realize_markov",
+    "gramians",
+    "hankel_singular_values",
+    "balanced_realization",
     "realize_expression",
     "from_scipy",
 ]

@@ -16,6 +16,8 @@ use crate::batch;
 use crate::krylov;
 use numpy::PyReadonlyArray3;
 use crate::structure::{kalman, minimal, similarity, staircase};
+use crate::gramian::{balance as gramian_balance, lyapunov};
+use crate::identify::ho_kalman;
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
@@ -491,6 +493,82 @@ fn similarity_transform<'py>(
     Ok((array2(py, s.t)?, s.residuals, s.tol))
 }
 
+// ---- identification, Gramians and balancing
+
+#[pyfunction]
+#[pyo3(signature = (markov, order, tol))]
+fn realize_markov<'py>(
+    py: Python<'py>,
+    markov: PyReadonlyArray3<'py, f64>,
+    order: Option<usize>,
+    tol: Option<f64>,
+) -> PyResult<(Quad<'py>, Bound<'py, PyAny>, usize, f64, (usize, usize))> {
+    let (k, p, m) = markov.as_array().dim();
+    let data: Vec<f64> = markov.as_array().iter().copied().collect();
+    let r = run(py, move || ho_kalman::realize_markov(&data, k, p, m, order, tol))?;
+    let s = r.realization;
+    let count = r.singular_values.len();
+    Ok((
+        (array2(py, s.a)?, array2(py, s.b)?, array2(py, s.c)?, array2(py, s.d)?),
+        array_nd(py, r.singular_values, &[count])?,
+        r.order,
+        r.tol,
+        (r.block_rows, r.block_cols),
+    ))
+}
+
+#[pyfunction]
+#[pyo3(signature = (a, b, c, discrete))]
+fn gramians<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: PyReadonlyArray2<'py, f64>,
+    c: PyReadonlyArray2<'py, f64>,
+    discrete: bool,
+) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>, [f64; 2])> {
+    let (a, b, c) = (matrix_from(&a), matrix_from(&b), matrix_from(&c));
+    let g = run(py, move || lyapunov::gramians(&a, &b, &c, discrete))?;
+    Ok((array2(py, lyapunov::from_na(&g.wc))?, array2(py, lyapunov::from_na(&g.wo))?, g.residuals))
+}
+
+#[pyfunction]
+#[pyo3(signature = (a, b, c, discrete))]
+fn hankel_singular_values<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: PyReadonlyArray2<'py, f64>,
+    c: PyReadonlyArray2<'py, f64>,
+    discrete: bool,
+) -> PyResult<Bound<'py, PyAny>> {
+    let (a, b, c) = (matrix_from(&a), matrix_from(&b), matrix_from(&c));
+    let s = run(py, move || gramian_balance::hankel_singular_values(&a, &b, &c, discrete))?;
+    let n = s.len();
+    array_nd(py, s, &[n])
+}
+
+#[pyfunction]
+#[pyo3(signature = (a, b, c, d, order, discrete))]
+fn balanced_realization<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray2<'py, f64>,
+    b: PyReadonlyArray2<'py, f64>,
+    c: PyReadonlyArray2<'py, f64>,
+    d: PyReadonlyArray2<'py, f64>,
+    order: Option<usize>,
+    discrete: bool,
+) -> PyResult<(Quad<'py>, Bound<'py, PyAny>, f64, [f64; 2])> {
+    let ss = model_from(&a, &b, &c, &d)?;
+    let r = run(py, move || gramian_balance::balanced_realization(&ss, order, discrete))?;
+    let s = r.realization;
+    let n = r.hankel_singular_values.len();
+    Ok((
+        (array2(py, s.a)?, array2(py, s.b)?, array2(py, s.c)?, array2(py, s.d)?),
+        array_nd(py, r.hankel_singular_values, &[n])?,
+        r.error_bound,
+        r.residuals,
+    ))
+}
+
 #[pymodule]
 fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("ModelError", m.py().get_type::<ModelError>())?;
@@ -509,6 +587,10 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(minimal_realization, m)?)?;
     m.add_function(wrap_pyfunction!(kalman_decomposition, m)?)?;
     m.add_function(wrap_pyfunction!(similarity_transform, m)?)?;
+    m.add_function(wrap_pyfunction!(realize_markov, m)?)?;
+    m.add_function(wrap_pyfunction!(gramians, m)?)?;
+    m.add_function(wrap_pyfunction!(hankel_singular_values, m)?)?;
+    m.add_function(wrap_pyfunction!(balanced_realization, m)?)?;
     m.add("CERTIFIED_TOLERANCE", recover::CERTIFIED_TOLERANCE)?;
     Ok(())
 }

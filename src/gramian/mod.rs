@@ -1,0 +1,9 @@
+//! Gramians and balancing of stable models.
+//!
+//! | routine | module |
+//! | --- | --- |
+//! | Lyapunov and Stein equations (Bartels–Stewart over a real Schur form), Gramians | [`lyapunov`] |
+//! | Hankel singular values, balanced realization and truncation (square-root method) | [`balance`] |
+
+pub mod balance;
+pub mod lyapunov;
