@@ -13,6 +13,7 @@ pub mod identify;
 pub mod krylov;
 pub mod matrix;
 pub mod poly;
+pub mod poly_lcm;
 pub mod realize;
 pub mod recover;
 pub mod scalar;

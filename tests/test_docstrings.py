@@ -6,9 +6,9 @@ import doctest
 import pytest
 
 import statewright
-from statewright import _api, _batch, _interop, _objects, _structure, cluster
+from statewright import _api, _batch, _identify, _interop, _objects, _structure, _transfer_matrix, cluster
 
-MODULES = [statewright, _api, _objects, _structure, _batch, _interop, cluster]
+MODULES = [statewright, _api, _objects, _structure, _batch, _interop, _identify, _transfer_matrix, cluster]
 
 
 @pytest.mark.parametrize("module", MODULES, ids=[m.__name__ for m in MODULES])

@@ -20,6 +20,7 @@ from ._api import (
 from ._interop import from_scipy, realize_expression
 from ._identify import balanced_realization, gramians, hankel_singular_values, realize_markov
 from ._batch import realize_batch, transfer_function_batch
+from ._transfer_matrix import realize_transfer_matrix
 from ._structure import (
     Decomposition,
     Staircase,
@@ -43,6 +44,7 @@ __all__ = [
     "transfer_function",
     "controllability_matrix",
     "observability_matrix",
+    "realize_transfer_matrix",
     "realize_batch",
     "transfer_function_batch",
     "Staircase",

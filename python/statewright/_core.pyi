@@ -52,3 +52,11 @@ def hankel_singular_values(a: _F64, b: _F64, c: _F64, discrete: bool) -> _F64: .
 def balanced_realization(
     a: _F64, b: _F64, c: _F64, d: _F64, order: Optional[int], discrete: bool
 ) -> Tuple[_Quad, _F64, float, List[float]]: ...
+# (A, B, C, D) and {"block_orders", "merge_tol", "denominator_residual"}
+def realize_transfer_matrix_float(
+    num: _F64, den: _F64, form: str, tol: Optional[float]
+) -> Tuple[_Quad, Dict[str, Union[List[int], float]]]: ...
+# num, den: one entry per row (p*m rows, row-major over (i, j))
+def realize_transfer_matrix_exact(
+    num: _Exact, den: _Exact, p: int, m: int, form: str
+) -> Tuple[_Exact, _Exact, _Exact, _Exact]: ...

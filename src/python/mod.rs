@@ -10,6 +10,7 @@
 use crate::error::ModelError as CoreError;
 use crate::matrix::Matrix;
 use crate::realize::{self, Form};
+use crate::realize::transfer_matrix::{self, BlockForm};
 use crate::recover::{self, Accuracy, Method};
 use crate::state_space::StateSpace;
 use crate::batch;
@@ -316,6 +317,82 @@ fn controllability_matrix_exact(py: Python<'_>, a: ExactIn, b: ExactIn) -> PyRes
     Ok(exact_out(k))
 }
 
+// ---- transfer matrices (block companion forms)
+
+fn parse_block_form(form: &str) -> PyResult<BlockForm> {
+    form.parse().map_err(to_py)
+}
+
+/// Entries of a (p, m, k) array as p·m coefficient vectors, row-major.
+fn entries_from(x: &PyReadonlyArray3<'_, f64>) -> Vec<Vec<f64>> {
+    let view = x.as_array();
+    let (p, m, _) = view.dim();
+    let mut out = Vec::with_capacity(p * m);
+    for i in 0..p {
+        for j in 0..m {
+            out.push(view.slice(ndarray::s![i, j, ..]).iter().copied().collect());
+        }
+    }
+    out
+}
+
+#[pyfunction]
+#[pyo3(signature = (num, den, form, tol))]
+fn realize_transfer_matrix_float<'py>(
+    py: Python<'py>,
+    num: PyReadonlyArray3<'py, f64>,
+    den: PyReadonlyArray3<'py, f64>,
+    form: &str,
+    tol: Option<f64>,
+) -> PyResult<(Quad<'py>, Bound<'py, PyDict>)> {
+    let form = parse_block_form(form)?;
+    let (p, m, _) = num.as_array().dim();
+    let (pd, md, _) = den.as_array().dim();
+    if (pd, md) != (p, m) {
+        return Err(to_py(CoreError::Shape {
+            arg: "den",
+            expected: format!("shape ({p}, {m}, k) (one denominator per entry of num)"),
+            found: format!("shape ({pd}, {md}, k)"),
+        }));
+    }
+    let (num, den) = (entries_from(&num), entries_from(&den));
+    let (ss, info) = run(py, move || transfer_matrix::realize_transfer_matrix_f64(p, m, &num, &den, form, tol))?;
+    let d = PyDict::new(py);
+    d.set_item("block_orders", info.block_orders)?;
+    d.set_item("merge_tol", info.merge_tol)?;
+    d.set_item("denominator_residual", info.denominator_residual)?;
+    Ok(((frozen2(py, ss.a)?, frozen2(py, ss.b)?, frozen2(py, ss.c)?, frozen2(py, ss.d)?), d))
+}
+
+/// `num` and `den` hold one entry per row (p·m rows, row-major over (i, j)).
+#[pyfunction]
+#[pyo3(signature = (num, den, p, m, form))]
+fn realize_transfer_matrix_exact(
+    py: Python<'_>,
+    num: ExactIn,
+    den: ExactIn,
+    p: usize,
+    m: usize,
+    form: &str,
+) -> PyResult<(ExactOut, ExactOut, ExactOut, ExactOut)> {
+    let form = parse_block_form(form)?;
+    let rows = |x: Matrix<BigRational>| -> Vec<Vec<BigRational>> {
+        let c = x.cols();
+        x.into_vec().chunks(c.max(1)).map(|r| r.to_vec()).collect()
+    };
+    let (num, den) = (exact_matrix("num", num)?, exact_matrix("den", den)?);
+    if num.rows() != p * m || den.rows() != p * m || num.cols() == 0 || den.cols() == 0 {
+        return Err(to_py(CoreError::Shape {
+            arg: "den",
+            expected: format!("{} nonempty entries in num and den", p * m),
+            found: format!("{} and {}", num.rows(), den.rows()),
+        }));
+    }
+    let (num, den) = (rows(num), rows(den));
+    let ss = run(py, move || transfer_matrix::realize_transfer_matrix_exact(p, m, &num, &den, form))?;
+    Ok((exact_out(ss.a), exact_out(ss.b), exact_out(ss.c), exact_out(ss.d)))
+}
+
 // ---- batches
 
 #[pyfunction]
@@ -591,6 +668,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(gramians, m)?)?;
     m.add_function(wrap_pyfunction!(hankel_singular_values, m)?)?;
     m.add_function(wrap_pyfunction!(balanced_realization, m)?)?;
+    m.add_function(wrap_pyfunction!(realize_transfer_matrix_float, m)?)?;
+    m.add_function(wrap_pyfunction!(realize_transfer_matrix_exact, m)?)?;
     m.add("CERTIFIED_TOLERANCE", recover::CERTIFIED_TOLERANCE)?;
     Ok(())
 }

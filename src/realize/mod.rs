@@ -11,11 +11,13 @@
 //! | controller, observer | [`controller`] |
 //! | controllability, observability | [`krylov`] |
 //! | modal | [`modal`] (float only) |
+//! | block_controller, block_observer (p × m transfer matrices) | [`transfer_matrix`] |
 
 pub mod controllable;
 pub mod controller;
 pub mod krylov;
 pub mod modal;
+pub mod transfer_matrix;
 
 use crate::error::{ModelError, Result};
 use crate::poly::{split_proper, strip_leading_zeros, ProperSplit};
