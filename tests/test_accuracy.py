@@ -162,7 +162,9 @@ def test_recursion_bound_is_a_bound():
         except sw.ModelError:
             continue
         e = coef_rel_error(den, ref)
-        assert e <= acc["relative_error_bound"], (family, n, e, acc)
+        # None means nothing is certified (the recursion's bound reached the values)
+        bound = acc["relative_error_bound"]
+        assert bound is None or e <= bound, (family, n, e, acc)
 
 
 def test_exact_method_is_correctly_rounded():

@@ -222,7 +222,8 @@ def transfer_function(
           spread (relative errors of 1e-1 at n = 8 over four decades, far worse at n = 20).
     return_accuracy : bool
         Also return ``{"method": ..., "relative_error_bound": ...}`` saying which
-        evaluation was used and its bound on the relative error of every coefficient.
+        evaluation was used and its bound on the relative error of every coefficient
+        (None when nothing is certified, as can happen with ``method="recursion"``).
 
     Returns
     -------
@@ -263,6 +264,9 @@ def transfer_function(
     v.check_model_shapes(fa, fb, fc, fd)
     num, den, accuracy = _core.transfer_function_float(fa, fb, fc, fd, method)
     if v.check_flag(return_accuracy, "return_accuracy"):
+        bound = accuracy["relative_error_bound"]
+        if isinstance(bound, float) and not np.isfinite(bound):
+            accuracy["relative_error_bound"] = None  # nothing certified (unchecked recursion)
         return num, den, accuracy
     return num, den
 

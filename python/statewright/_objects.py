@@ -128,6 +128,8 @@ class Realization:
             arrays = [v.float_matrix(x, name) for x, name in zip((a, b, c, d), "abcd")]
         v.check_model_shapes(*arrays)
         self._a, self._b, self._c, self._d = (_frozen(x) for x in arrays)
+        if info is not None and not isinstance(info, Mapping):
+            raise ModelError(f"info: expected a mapping of diagnostics or None, found a {type(info).__name__}")
         self._info = types.MappingProxyType(dict(info or {}))
 
     @classmethod

@@ -94,8 +94,24 @@ def float_polynomial(x: Any, arg: str, check_finite: bool = True) -> np.ndarray:
     return arr
 
 
+#: Largest size, in bits, of the numerator or denominator of one exact entry. The exact
+#: recursions multiply sizes by the order, so bigger entries would take unbounded time.
+MAX_EXACT_BITS = 4096
+
+
 def to_fraction(v: Any, arg: str) -> Fraction:
     """One exact number: int, Fraction (or any rational), Decimal or decimal string."""
+    if isinstance(v, str) and len(v) > 2 * MAX_EXACT_BITS:
+        raise ModelError(f"{arg}: an exact entry of {len(v)} characters exceeds the size limit "
+                         f"({MAX_EXACT_BITS} bits per numerator or denominator)")
+    q = _to_fraction(v, arg)
+    if max(q.numerator.bit_length(), q.denominator.bit_length()) > MAX_EXACT_BITS:
+        raise ModelError(f"{arg}: an exact entry needs more than {MAX_EXACT_BITS} bits "
+                         "(numerator or denominator); exact mode is limited to that size per entry")
+    return q
+
+
+def _to_fraction(v: Any, arg: str) -> Fraction:
     if isinstance(v, (bool, np.bool_)):
         raise ModelError(f"{arg}: a boolean is not a number here")
     if isinstance(v, Fraction):

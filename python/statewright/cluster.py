@@ -22,6 +22,7 @@ import numpy as np
 
 from ._batch import offset_errors as _offset_errors
 from ._batch import realize_batch, transfer_function_batch
+from . import _validate as v
 from ._core import ModelError
 
 __all__ = ["realize_batch_dask", "transfer_function_batch_dask"]
@@ -35,9 +36,19 @@ def _import_dask() -> Any:
     return dask, da
 
 
-def _rows(x: Any, da: Any, chunks: Any = None) -> Any:
-    """A dask array chunked along the first axis only."""
-    arr = x if isinstance(x, da.Array) else da.from_array(np.asarray(x, dtype=float), chunks=-1)
+def _rows(x: Any, da: Any, arg: str, ndim: int, chunks: Any = None) -> Any:
+    """A dask array chunked along the first axis only; numpy-like input is validated first."""
+    if isinstance(x, da.Array):
+        if x.ndim != ndim:
+            raise ModelError(f"{arg}: expected a {ndim}-D array, found shape {x.shape}")
+        if x.dtype.kind not in "biuf":
+            raise ModelError(f"{arg}: expected a numeric dask array, found dtype {x.dtype}")
+        arr = x
+    else:
+        arr = da.from_array(v.float_stack(x, arg, ndim, f"{ndim}-D"), chunks=-1)
+    if 0 in arr.shape:
+        raise ModelError(f"{arg}: the batch is empty along a dimension (shape {arr.shape}); "
+                         "call the in-process batch function for empty batches")
     arr = arr.astype(float)
     spec = {i: -1 for i in range(1, arr.ndim)}
     if chunks is not None:
@@ -60,10 +71,11 @@ def realize_batch_dask(num: Any, den: Any, form: str = "controllable_canonical")
         Lazy; compute them together (``dask.compute(A, B, C, D)``) so each chunk runs once.
     """
     dask, da = _import_dask()
-    num = _rows(num, da)
-    den = _rows(den, da, num.chunks[0])
-    if num.ndim != 2 or den.ndim != 2:
-        raise ModelError(f"num, den: expected 2-D arrays (N, k) and (N, n + 1), found {num.shape} and {den.shape}")
+    num = _rows(num, da, "num", 2)
+    if den is not None and getattr(den, "shape", (None,))[0] != num.shape[0]:
+        found = getattr(den, "shape", None)
+        raise ModelError(f"den: expected {num.shape[0]} rows (one per model, as num), found shape {found}")
+    den = _rows(den, da, "den", 2, num.chunks[0])
     n = den.shape[1] - 1
     outs: Tuple[List[Any], List[Any], List[Any], List[Any]] = ([], [], [], [])
     start = 0
@@ -82,10 +94,11 @@ def transfer_function_batch_dask(a: Any, b: Any, c: Any, d: Any) -> Tuple[Any, A
     ``num`` (N, p, m, n + 1) and ``den`` (N, n + 1).
     """
     dask, da = _import_dask()
-    a = _rows(a, da)
-    b, c, d = (_rows(x, da, a.chunks[0]) for x in (b, c, d))
-    if not (a.ndim == b.ndim == c.ndim == d.ndim == 3):
-        raise ModelError("a, b, c, d: expected 3-D stacks (N, n, n), (N, n, m), (N, p, n), (N, p, m)")
+    a = _rows(a, da, "a", 3)
+    for x, name in ((b, "b"), (c, "c"), (d, "d")):
+        if getattr(x, "shape", (None,))[0] != a.shape[0]:
+            raise ModelError(f"{name}: expected {a.shape[0]} models (as a), found shape {getattr(x, 'shape', None)}")
+    b, c, d = (_rows(x, da, name, 3, a.chunks[0]) for x, name in ((b, "b"), (c, "c"), (d, "d")))
     n, m, p = a.shape[1], b.shape[2], c.shape[1]
     nums, dens = [], []
     start = 0

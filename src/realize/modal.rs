@@ -53,7 +53,7 @@ pub struct ModalInfo {
 pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, ModalInfo)> {
     let n = split.order();
     if n == 0 {
-        let info = ModalInfo { eigenvector_condition: 1.0, condition_limit: f64::INFINITY };
+        let info = ModalInfo { eigenvector_condition: 1.0, condition_limit: 1.0 / f64::EPSILON.sqrt() };
         return Ok((super::gain_only(&split.direct), info));
     }
     let companion = super::controllable::controllable_canonical(split);

@@ -69,8 +69,14 @@ pub struct Staircase {
     pub tol: f64,
 }
 
+/// Frobenius norm, scaled by the largest entry so that it does not overflow for entries
+/// near the top of the float64 range.
 pub fn frobenius(m: &Matrix<f64>) -> f64 {
-    m.as_slice().iter().map(|v| v * v).sum::<f64>().sqrt()
+    let big = m.as_slice().iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
+    if big == 0.0 || !big.is_finite() {
+        return big;
+    }
+    big * m.as_slice().iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
 }
 
 /// `n² eps max(‖A‖_F, ‖B‖_F)`.
