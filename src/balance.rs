@@ -29,7 +29,9 @@ pub fn balance(a: &Matrix<f64>) -> (Matrix<f64>, Vec<f64>) {
                     row += m.get(i, j).abs();
                 }
             }
-            if col == 0.0 || row == 0.0 {
+            // Zero or overflowing sums: nothing to balance here (and an infinite sum would
+            // never leave the scaling loops below).
+            if col == 0.0 || row == 0.0 || !col.is_finite() || !row.is_finite() {
                 continue;
             }
             let sum = col + row;

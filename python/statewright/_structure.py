@@ -32,7 +32,10 @@ def _tol(tol: Any) -> Optional[float]:
         return None
     if isinstance(tol, (bool, np.bool_)) or not isinstance(tol, (int, float, np.integer, np.floating)):
         raise ModelError(f"tol: expected a nonnegative number or None, found a {type(tol).__name__}")
-    t = float(tol)
+    try:
+        t = float(tol)
+    except OverflowError:
+        raise ModelError(f"tol: {tol!r} is beyond the float64 range") from None
     if not (np.isfinite(t) and t >= 0):
         raise ModelError(f"tol: must be finite and >= 0, found {t}")
     return t
