@@ -315,15 +315,7 @@ mod harness {
 
     #[test]
     fn core_entry_points_never_panic() {
-        let forms = [
-            Form::ControllableCanonical,
-            Form::ObservableCanonical,
-            Form::Controller,
-            Form::Observer,
-            Form::Controllability,
-            Form::Observability,
-            Form::Modal,
-        ];
+        let forms: Vec<Form> = super::COMPANION_FORMS.iter().copied().chain([Form::Modal]).collect();
         let mut rng = Rng(2026);
         for _ in 0..CASES {
             let (kn, kd) = (rng.below(6), rng.below(6));
