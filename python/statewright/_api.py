@@ -136,11 +136,9 @@ def faddeev_leverrier(a: Any, *, exact: bool = False, method: str = "auto") -> T
            [-2.,  0.]])
     """
     if v.check_flag(exact, "exact"):
-        am = v.exact_matrix(a, "a")
-        if am.shape[0] != am.shape[1]:
-            raise _core.ModelError(f"a: expected a square matrix, found shape {am.shape}")
+        am = _square_exact(a)
         n = am.shape[0]
-        exact_coeffs, exact_adj = _core.faddeev_leverrier_exact(v.to_core(am))
+        exact_coeffs, exact_adj = _core.faddeev_leverrier_exact(v.to_core(am), True)
         adj_arr = np.empty((n, n, n), dtype=object)
         for k, m in enumerate(exact_adj):
             adj_arr[k] = v.fraction_array(m, (n, n))
@@ -153,13 +151,21 @@ def faddeev_leverrier(a: Any, *, exact: bool = False, method: str = "auto") -> T
     return coeffs, adj
 
 
+def _square_exact(a: Any) -> np.ndarray:
+    am = v.exact_matrix(a, "a")
+    if am.shape[0] != am.shape[1]:
+        raise _core.ModelError(f"a: expected a square matrix, found shape {am.shape}")
+    return am
+
+
 def characteristic_polynomial(a: Any, *, exact: bool = False, method: str = "auto") -> np.ndarray:
     r"""Coefficients ``[1, c_1, ..., c_n]`` of ``det(sI - A)``, highest power first.
 
     Float data: ``method="auto"`` returns the float Faddeev–LeVerrier result when its
-    running error bound certifies every coefficient to a relative error of 2^-48
-    (about 3.6e-15), and otherwise the exact recursion on the float data rounded once
-    (every coefficient correctly rounded). See :func:`transfer_function`.
+    certified double-double result when its running error bound certifies every
+    coefficient to 2^-56 relative (so the float64 result is within 0.625 ulp), and
+    otherwise the exact recursion on the float data rounded once (every coefficient
+    correctly rounded). See :func:`transfer_function`.
 
     Examples
     --------
@@ -168,7 +174,9 @@ def characteristic_polynomial(a: Any, *, exact: bool = False, method: str = "aut
     [Fraction(1, 1), Fraction(-5, 1), Fraction(-2, 1)]
     """
     if v.check_flag(exact, "exact"):
-        return faddeev_leverrier(a, exact=True)[0]
+        am = _square_exact(a)
+        exact_coeffs, _ = _core.faddeev_leverrier_exact(v.to_core(am), False)
+        return v.fraction_array(exact_coeffs, (am.shape[0] + 1,))
     method = v.check_option(method, "method", METHODS)
     am = v.float_matrix(a, "a")
     if am.shape[0] != am.shape[1]:
@@ -210,10 +218,10 @@ def transfer_function(
     method : {"auto", "recursion", "exact"}
         How float data are evaluated:
 
-        * ``"auto"`` (default): the float recursion carrying a componentwise running error
-          bound; accepted when the bound certifies every returned coefficient to a
-          relative error of 2^-48 (about 3.6e-15), otherwise the ``"exact"`` evaluation.
-          The check costs about as much as the recursion itself.
+        * ``"auto"`` (default): the recursion in double-double arithmetic carrying a
+          componentwise running error bound; accepted when the bound certifies every
+          coefficient to 2^-56 relative before the final rounding (so the float64 result
+          is within 0.625 ulp of the exact value), otherwise the ``"exact"`` evaluation.
         * ``"exact"``: the recursion in big integers on the float data (each float64 is a
           dyadic rational), each coefficient rounded once: correctly rounded, however
           spread the eigenvalues. Cost grows with the bit length (milliseconds at n = 20).

@@ -290,13 +290,13 @@ fn check_exact_order(n: usize) -> PyResult<()> {
 }
 
 #[pyfunction]
-fn faddeev_leverrier_exact(py: Python<'_>, a: ExactIn) -> PyResult<(ExactOut, Vec<ExactOut>)> {
+fn faddeev_leverrier_exact(py: Python<'_>, a: ExactIn, with_adjugates: bool) -> PyResult<(ExactOut, Vec<ExactOut>)> {
     check_exact_order(a.0)?;
     let a = exact_matrix("a", a)?;
     if a.rows() != a.cols() {
         return Err(to_py(CoreError::Shape { arg: "a", expected: "a square matrix".into(), found: format!("shape ({}, {})", a.rows(), a.cols()) }));
     }
-    let (coeffs, adj) = run(py, move || Ok(recover::faddeev_leverrier::faddeev_leverrier(&a)))?;
+    let (coeffs, adj) = run(py, move || recover::rational::faddeev_leverrier_rational(&a, with_adjugates))?;
     Ok((exact_out_vec(coeffs), adj.into_iter().map(exact_out).collect()))
 }
 
@@ -305,7 +305,7 @@ fn transfer_function_exact(py: Python<'_>, a: ExactIn, b: ExactIn, c: ExactIn, d
     check_exact_order(a.0)?;
     let ss = StateSpace::new(exact_matrix("a", a)?, exact_matrix("b", b)?, exact_matrix("c", c)?, exact_matrix("d", d)?)
         .map_err(to_py)?;
-    let (num, den) = run(py, move || Ok(recover::faddeev_leverrier::transfer_function(&ss)))?;
+    let (num, den) = run(py, move || recover::rational::transfer_function_rational(&ss))?;
     Ok((exact_out_vec(num), exact_out_vec(den)))
 }
 

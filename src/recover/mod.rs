@@ -1,7 +1,8 @@
 //! Transfer-function recovery: characteristic polynomial, adjugate sequence and transfer
 //! matrix of a state-space model by the Faddeev–LeVerrier recursion.
 //!
-//! Exact data use the generic recursion ([`faddeev_leverrier`]). Float data choose between
+//! Exact data use the generic recursion ([`faddeev_leverrier`]) over the integers, after
+//! clearing denominators ([`rational`]). Float data choose between
 //! two evaluations of the same recursion ([`Method`]):
 //!
 //! * the recursion in double-double arithmetic (about 106 bits) with a running error bound
@@ -18,6 +19,7 @@ pub mod certified;
 pub mod double_double;
 pub mod dyadic;
 pub mod faddeev_leverrier;
+pub mod rational;
 
 use crate::error::{require_finite, ModelError, Result};
 use crate::matrix::Matrix;
