@@ -23,7 +23,9 @@
 //! orthogonal changes of coordinates (up to rounding). [`super::minimal`] and
 //! [`super::kalman`] work on a balanced copy instead (smaller rounding errors for
 //! companion-like models). The singular values every decision was made on are
-//! kept ([`StepRecord`]), so a caller sees how close each one was. Ranks are never decided
+//! kept ([`StepRecord`]), so a caller sees how close each one was. Data whose largest entry
+//! is beyond 1e150 or below 1e-150 (in magnitude) are reduced on a copy scaled by a power of
+//! two, so no intermediate sum overflows or underflows where the results are representable. Ranks are never decided
 //! from the controllability matrix `[B, AB, ..., A^(n−1)B]`: its columns align with the
 //! dominant eigenvectors and its singular values spread like powers of the eigenvalue
 //! magnitudes, so a controllable model with fast and slow modes looks rank deficient.
@@ -79,10 +81,60 @@ pub fn frobenius(m: &Matrix<f64>) -> f64 {
     big * m.as_slice().iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
 }
 
-/// `n² eps max(‖A‖_F, ‖B‖_F)`.
+/// `factor · ‖m‖_F` with the small factor applied before the norm is assembled, so that the
+/// product is finite whenever it is representable (the norm alone may not be).
+fn scaled_frobenius(factor: f64, m: &Matrix<f64>) -> f64 {
+    let big = m.as_slice().iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
+    if big == 0.0 || !big.is_finite() {
+        return factor * big;
+    }
+    (factor * big) * m.as_slice().iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+}
+
+/// `n² eps max(‖A‖_F, ‖B‖_F)`, finite for every finite input (n² eps ‖·‖ is far below the
+/// float64 range even where the norm itself is not).
 pub fn default_tol(a: &Matrix<f64>, b: &Matrix<f64>) -> f64 {
     let n = a.rows() as f64;
-    n * n * f64::EPSILON * frobenius(a).max(frobenius(b))
+    let factor = n * n * f64::EPSILON;
+    scaled_frobenius(factor, a).max(scaled_frobenius(factor, b))
+}
+
+/// Entries beyond these magnitudes are brought back by a power of two before reducing.
+const RANGE_HIGH: f64 = 1.0e150;
+const RANGE_LOW: f64 = 1.0e-150;
+
+/// A power of two `s` with `s · max|m|` near 1 when the largest magnitude of the matrices is
+/// outside `[RANGE_LOW, RANGE_HIGH]`, else 1 (the common case is left bit for bit alone).
+fn range_scale(ms: &[&Matrix<f64>]) -> f64 {
+    let big = ms.iter().flat_map(|m| m.as_slice()).fold(0.0f64, |acc, v| acc.max(v.abs()));
+    if big == 0.0 || (RANGE_LOW..=RANGE_HIGH).contains(&big) {
+        return 1.0;
+    }
+    let exponent = -(big.log2().round() as i32);
+    // Two steps: 2^±1074 is not a normal float64, but its halves are.
+    2f64.powi(exponent / 2) * 2f64.powi(exponent - exponent / 2)
+}
+
+fn scaled(m: &Matrix<f64>, s: f64) -> Matrix<f64> {
+    if s == 1.0 { m.clone() } else { m.map(|v| v * s) }
+}
+
+/// `m / s`, refused when an entry leaves the float64 range (the true value is not representable).
+fn unscaled(m: Matrix<f64>, s: f64, what: &str) -> Result<Matrix<f64>> {
+    if s == 1.0 {
+        return Ok(m);
+    }
+    let out = m.map(|v| v / s);
+    require_representable(out.as_slice(), what)?;
+    Ok(out)
+}
+
+fn require_representable(values: &[f64], what: &str) -> Result<()> {
+    if values.iter().all(|v| v.is_finite()) {
+        Ok(())
+    } else {
+        Err(ModelError::Overflow { what: what.to_string() })
+    }
 }
 
 pub(crate) fn check_tol(tol: Option<f64>) -> Result<()> {
@@ -112,10 +164,34 @@ fn thin_svd(rows: usize, cols: usize, at: impl Fn(usize, usize) -> f64) -> Resul
 }
 
 /// The controllability staircase of (A, B), carrying C along when given.
+///
+/// Data near the ends of the float64 range are reduced on a copy scaled by powers of two
+/// (A and B by one factor, C by its own), which changes no decision: the reduction is
+/// homogeneous in (A, B, tol) and linear in C. Results are scaled back; one that is not
+/// representable there is refused with `Overflow` rather than returned as infinity.
 pub fn controllability_staircase(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Matrix<f64>>, tol: Option<f64>) -> Result<Staircase> {
     check_pair(a, b, c)?;
     check_tol(tol)?;
-    reduce(a, b, c, tol.unwrap_or_else(|| default_tol(a, b)))
+    let s_ab = range_scale(&[a, b]);
+    let s_c = c.map_or(1.0, |c| range_scale(&[c]));
+    if s_ab == 1.0 && s_c == 1.0 {
+        return reduce(a, b, c, tol.unwrap_or_else(|| default_tol(a, b)));
+    }
+    let (a_s, b_s, c_s) = (scaled(a, s_ab), scaled(b, s_ab), c.map(|c| scaled(c, s_c)));
+    let tol_s = match tol {
+        Some(t) => t * s_ab,
+        None => default_tol(&a_s, &b_s),
+    };
+    let mut st = reduce(&a_s, &b_s, c_s.as_ref(), tol_s)?;
+    st.a = unscaled(st.a, s_ab, "the transformed A of the staircase form")?;
+    st.b = unscaled(st.b, s_ab, "the transformed B of the staircase form")?;
+    st.c = st.c.map(|c| unscaled(c, s_c, "the transformed C of the staircase form")).transpose()?;
+    for step in &mut st.steps {
+        step.singular_values.iter_mut().for_each(|v| *v /= s_ab);
+        require_representable(&step.singular_values, "the singular values of a staircase step")?;
+    }
+    st.tol = tol.unwrap_or(st.tol / s_ab);
+    Ok(st)
 }
 
 /// One staircase reduction with step sizes decided by `tol`.
@@ -214,3 +290,67 @@ pub(crate) fn leading_part(a: &Matrix<f64>, b: &Matrix<f64>, c: &Matrix<f64>, k:
     (sub(a, k, k), sub(b, k, b.cols()), sub(c, c.rows(), k))
 }
 
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const BIG: f64 = f64::MAX;
+
+    fn m(r: usize, c: usize, v: &[f64]) -> Matrix<f64> {
+        Matrix::from_row_major(r, c, v.to_vec()).unwrap()
+    }
+
+    #[test]
+    fn entries_at_the_top_of_the_range_give_finite_exact_results() {
+        // A = 0, B = e_8, C = [MAX; 8]: the one reflection swaps e_1 and −e_8, so C Q is a
+        // signed permutation of C (identity), finite although C e_1 + C e_8 overflows.
+        let n = 8;
+        let a = Matrix::zeros(n, n);
+        let mut bv = vec![0.0; n];
+        bv[n - 1] = 1.0;
+        let b = m(n, 1, &bv);
+        let c = m(1, n, &[BIG; 8]);
+        let s = controllability_staircase(&a, &b, Some(&c), None).unwrap();
+        let cq = s.c.unwrap();
+        assert!(cq.as_slice().iter().all(|v| v.abs() == BIG), "{cq:?}");
+        assert_eq!(s.rank, 1);
+    }
+
+    #[test]
+    fn default_tol_is_finite_when_the_norm_is_not() {
+        // ‖A‖_F = √2 · MAX overflows; n² eps ‖A‖_F = 4 · 2.2e-16 · 2.5e308 does not.
+        let a = m(2, 2, &[BIG, BIG, 0.0, 0.0]);
+        let b = Matrix::zeros(2, 0);
+        let s = controllability_staircase(&a, &b, None, None).unwrap();
+        let expected = 4.0 * f64::EPSILON * BIG * 2f64.sqrt();
+        assert!((s.tol - expected).abs() <= 1e-15 * expected, "{} vs {}", s.tol, expected);
+    }
+
+    #[test]
+    fn scaling_changes_no_decision() {
+        // (identity) the staircase of (2^k A, 2^k B) is that of (A, B) scaled by 2^k.
+        let a = m(3, 3, &[1.0, 2.0, 0.0, -1.0, 0.5, 3.0, 0.0, 0.25, -2.0]);
+        let b = m(3, 1, &[1.0, 0.0, 1.0]);
+        let c = m(1, 3, &[0.0, 1.0, -1.0]);
+        let k = 2f64.powi(700);
+        let plain = controllability_staircase(&a, &b, Some(&c), None).unwrap();
+        let big = controllability_staircase(&a.map(|v| v * k), &b.map(|v| v * k), Some(&c.map(|v| v / k)), None).unwrap();
+        assert_eq!(plain.q, big.q);
+        assert_eq!(plain.blocks, big.blocks);
+        assert_eq!(plain.a.map(|v| v * k), big.a);
+        assert_eq!(plain.c.unwrap().map(|v| v / k), big.c.unwrap());
+        assert_eq!(plain.tol * k, big.tol);
+    }
+
+    #[test]
+    fn an_unrepresentable_result_is_refused_not_infinite() {
+        // B = [MAX, MAX]ᵀ: the first step's singular value is √2 · MAX, beyond the range.
+        let a = Matrix::zeros(2, 2);
+        let b = m(2, 1, &[BIG, BIG]);
+        match controllability_staircase(&a, &b, None, None) {
+            Err(ModelError::Overflow { .. }) => {}
+            other => panic!("expected Overflow, got {other:?}"),
+        }
+    }
+}
