@@ -36,6 +36,27 @@ def _holds_fraction(x: Any) -> bool:
 
 _NO_INFO: "types.MappingProxyType[str, Any]" = types.MappingProxyType({})
 
+# Data whose largest magnitude lies outside this band are handled on a copy scaled by a
+# power of two (exact), so intermediate sums cannot overflow where the result is finite.
+_RANGE_LOW, _RANGE_HIGH = 1e-150, 1e150
+
+
+def _range_exponent(*arrays: np.ndarray) -> int:
+    """e with max|x| * 2^-e near 1 when the largest magnitude is outside the safe band, else 0."""
+    big = max((float(np.max(np.abs(x))) for x in arrays if x.size), default=0.0)
+    if big == 0.0 or _RANGE_LOW <= big <= _RANGE_HIGH:
+        return 0
+    return int(np.frexp(big)[1])
+
+
+def _times_pow2(x: np.ndarray, e: int) -> np.ndarray:
+    """x * 2^e, exactly unless the result leaves the range (ldexp saturates correctly)."""
+    if e == 0:
+        return x
+    if np.iscomplexobj(x):
+        return np.asarray(np.ldexp(x.real, e) + 1j * np.ldexp(x.imag, e))
+    return np.asarray(np.ldexp(x, e))
+
 
 def _frozen(x: np.ndarray) -> np.ndarray:
     x.flags.writeable = False
@@ -232,7 +253,11 @@ class Realization:
         a = self._float()[0]
         if a.shape[0] == 0:
             return np.zeros(0, dtype=complex)
-        p = np.linalg.eigvals(a).astype(complex)
+        # eig(2^-e A) = 2^-e eig(A): LAPACK's own norms overflow near the top of the range.
+        e = _range_exponent(a)
+        p = _times_pow2(np.linalg.eigvals(_times_pow2(a, -e)).astype(complex), e)
+        if not np.all(np.isfinite(p)):
+            raise ModelError("a: an eigenvalue lies beyond the float64 range although the entries are finite")
         return p[np.lexsort((p.imag, p.real))]
 
     def transfer_function(self, *, method: str = "auto") -> Tuple[np.ndarray, np.ndarray]:
@@ -260,6 +285,8 @@ class Realization:
             points = np.asarray(s, dtype=complex)
         except (TypeError, ValueError) as exc:
             raise ModelError(f"s: cannot be read as complex points ({exc})") from None
+        except OverflowError:
+            raise ModelError("s: a point lies beyond the float64 range") from None
         if points.ndim > 1:
             raise ModelError(f"s: expected a scalar or a 1-D array of points, found shape {points.shape}")
         if not np.all(np.isfinite(points)):
@@ -268,12 +295,21 @@ class Realization:
         n = a.shape[0]
         out = np.broadcast_to(d.astype(complex), (flat.size,) + d.shape).copy()
         if n:
-            pencil = flat[:, None, None] * np.eye(n) - a
-            try:
-                x = np.linalg.solve(pencil, np.broadcast_to(b.astype(complex), (flat.size,) + b.shape))
-            except np.linalg.LinAlgError:
-                raise ModelError("s: a point coincides with a pole (sI - A is singular there)") from None
-            out += c @ x
+            # C (sI - A)^-1 B = 2^(eb + ec - es) · C' (s' I - A')^-1 B' with every primed
+            # quantity scaled by a power of two into the safe band (no change for ordinary data).
+            es, eb, ec = _range_exponent(flat, a), _range_exponent(b), _range_exponent(c)
+            pencil = _times_pow2(flat, -es)[:, None, None] * np.eye(n) - _times_pow2(a, -es)
+            rhs = np.broadcast_to(_times_pow2(b, -eb).astype(complex), (flat.size,) + b.shape)
+            with np.errstate(all="ignore"):
+                try:
+                    x = np.linalg.solve(pencil, rhs)
+                except np.linalg.LinAlgError:
+                    raise ModelError("s: a point coincides with a pole (sI - A is singular there)") from None
+                if not np.all(np.isfinite(x)):
+                    raise ModelError("s: a point lies numerically on a pole (sI - A is singular to working precision)")
+                out += _times_pow2(_times_pow2(c, -ec) @ x, eb + ec - es)
+        if not np.all(np.isfinite(out)):
+            raise ModelError("s: the transfer matrix at this point lies beyond the float64 range")
         return out[0] if points.ndim == 0 else out
 
     def transform(self, t: Any) -> "Realization":
