@@ -36,24 +36,23 @@ def _import_dask() -> Any:
     return dask, da
 
 
-def _rows(x: Any, da: Any, arg: str, ndim: int, chunks: Any = None) -> Any:
-    """A dask array chunked along the first axis only; numpy-like input is validated first."""
+def _rows(x: Any, da: Any, arg: str, shape: str) -> Any:
+    """A dask array of the described shape (e.g. "(N, k)"), one chunk across every axis but
+    the first; numpy-like input is validated first."""
+    ndim = shape.count(",") + 1
     if isinstance(x, da.Array):
         if x.ndim != ndim:
-            raise ModelError(f"{arg}: expected a {ndim}-D array, found shape {x.shape}")
+            raise ModelError(f"{arg}: expected a {ndim}-D array of shape {shape}, found shape {x.shape}")
         if x.dtype.kind not in "biuf":
             raise ModelError(f"{arg}: expected a numeric dask array, found dtype {x.dtype}")
         arr = x
     else:
-        arr = da.from_array(v.float_stack(x, arg, ndim, f"{ndim}-D"), chunks=-1)
+        arr = da.from_array(v.float_stack(x, arg, ndim, shape), chunks=-1)
     if 0 in arr.shape:
         raise ModelError(f"{arg}: the batch is empty along a dimension (shape {arr.shape}); "
                          "call the in-process batch function for empty batches")
     arr = arr.astype(float)
-    spec = {i: -1 for i in range(1, arr.ndim)}
-    if chunks is not None:
-        spec[0] = chunks
-    return arr.rechunk(spec)
+    return arr.rechunk({i: -1 for i in range(1, arr.ndim)})
 
 
 def realize_batch_dask(num: Any, den: Any, form: str = "controllable_canonical") -> Tuple[Any, Any, Any, Any]:
@@ -71,11 +70,11 @@ def realize_batch_dask(num: Any, den: Any, form: str = "controllable_canonical")
         Lazy; compute them together (``dask.compute(A, B, C, D)``) so each chunk runs once.
     """
     dask, da = _import_dask()
-    num = _rows(num, da, "num", 2)
-    if den is not None and getattr(den, "shape", (None,))[0] != num.shape[0]:
-        found = getattr(den, "shape", None)
-        raise ModelError(f"den: expected {num.shape[0]} rows (one per model, as num), found shape {found}")
-    den = _rows(den, da, "den", 2, num.chunks[0])
+    num = _rows(num, da, "num", "(N, k)")
+    den = _rows(den, da, "den", "(N, n + 1)")
+    if den.shape[0] != num.shape[0]:
+        raise ModelError(f"den: expected {num.shape[0]} rows (one per model, as num), found shape {den.shape}")
+    den = den.rechunk({0: num.chunks[0]})
     n = den.shape[1] - 1
     outs: Tuple[List[Any], List[Any], List[Any], List[Any]] = ([], [], [], [])
     start = 0
@@ -94,11 +93,14 @@ def transfer_function_batch_dask(a: Any, b: Any, c: Any, d: Any) -> Tuple[Any, A
     ``num`` (N, p, m, n + 1) and ``den`` (N, n + 1).
     """
     dask, da = _import_dask()
-    a = _rows(a, da, "a", 3)
-    for x, name in ((b, "b"), (c, "c"), (d, "d")):
-        if getattr(x, "shape", (None,))[0] != a.shape[0]:
-            raise ModelError(f"{name}: expected {a.shape[0]} models (as a), found shape {getattr(x, 'shape', None)}")
-    b, c, d = (_rows(x, da, name, 3, a.chunks[0]) for x, name in ((b, "b"), (c, "c"), (d, "d")))
+    a = _rows(a, da, "a", "(N, n, n)")
+    rest = []
+    for x, name, shape in ((b, "b", "(N, n, m)"), (c, "c", "(N, p, n)"), (d, "d", "(N, p, m)")):
+        x = _rows(x, da, name, shape)
+        if x.shape[0] != a.shape[0]:
+            raise ModelError(f"{name}: expected {a.shape[0]} models (as a), found shape {x.shape}")
+        rest.append(x.rechunk({0: a.chunks[0]}))
+    b, c, d = rest
     n, m, p = a.shape[1], b.shape[2], c.shape[1]
     nums, dens = [], []
     start = 0
