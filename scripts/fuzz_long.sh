@@ -1,0 +1,2 @@
+#!/bin/sh
+STATEWRIGHT_FUZZ_EXAMPLES=100000 python -m pytest tests/test_fuzz.py -q
