@@ -755,7 +755,8 @@ def batch_polynomials(draw):
     k = draw(st.sampled_from([0, 1, n, n + 1, n + 1, n + 2]))
     num = draw(fuzz_float_arg((count, k), bad_rate=0.08))
     den = draw(fuzz_float_arg((count, n + 1), bad_rate=0.08))
-    if draw(st.booleans()) and isinstance(den, np.ndarray) and den.shape == (count, n + 1) and count:
+    numeric = isinstance(den, np.ndarray) and den.dtype.kind in "biuf"  # not a junk array of strings
+    if draw(st.booleans()) and numeric and den.shape == (count, n + 1) and count:
         den = np.array(den, dtype=float)
         den[:, 0] = draw(st.sampled_from([1.0, -3.0, 0.0, 1e-300]))
     return num, den, count, n
