@@ -18,7 +18,17 @@
 //! # Numerical aspects
 //! Exact; the results equal the `BigRational` recursion's bit for bit (both are the unique
 //! reduced fractions). Cost: about n⁴ big-integer multiplications of operands up to
-//! n·(bits of `M_A`) bits, and no GCD until the final reduction.
+//! n·(bits of `M_A`) bits, and no GCD until the final reduction, which peels common
+//! factors one denominator at a time (see `reduced`). Measured against the `BigRational`
+//! recursion (release build): 50 to 450 times faster on random p/q entries at orders 10
+//! to 40. The common denominator can be far longer than any entry (the lcm of n²
+//! unrelated denominators), so the time is estimated from the order and the bit length of
+//! the cleared integers before the work starts, and a request beyond
+//! [`EXACT_TIME_BUDGET_SECONDS`] is refused with `TooLarge`; the lcm is abandoned as soon
+//! as it passes the budget, so a refusal is quick.
+//!
+//! # Errors
+//! `TooLarge` beyond the time budget (the message names the argument and the bit counts).
 //!
 //! # References
 //! The recursion: see [`super::faddeev_leverrier`]. Clearing denominators before an exact
