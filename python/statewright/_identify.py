@@ -22,6 +22,9 @@ __all__ = [
 ]
 
 
+_MAX_ORDER = 4096  # the core's largest realization order
+
+
 def _order(order: Any) -> Optional[int]:
     if order is None:
         return None
@@ -29,6 +32,9 @@ def _order(order: Any) -> Optional[int]:
         raise ModelError(f"order: expected a nonnegative int or None, found a {type(order).__name__}")
     if int(order) < 0:
         raise ModelError(f"order: must be >= 0, found {int(order)}")
+    if int(order) > _MAX_ORDER:
+        # no model this package accepts has more states; also keeps the value in the core's range
+        raise ModelError(f"order: {int(order)} exceeds the largest supported order {_MAX_ORDER}")
     return int(order)
 
 
@@ -209,6 +215,7 @@ def balanced_realization(a: Any, b: Any, c: Any, d: Any, *, order: Optional[int]
     (ra, rb, rc, rd), hsv, bound, residuals = _core.balanced_realization(
         fa, fb, fc, fd, _order(order), v.check_flag(discrete, "discrete"))
     hsv.flags.writeable = False
-    info = {"hankel_singular_values": hsv, "error_bound": float(bound),
+    # + 0.0: an empty sum in the core is -0.0, and a bound reads better without the sign
+    info = {"hankel_singular_values": hsv, "error_bound": float(bound) + 0.0,
             "residuals": (float(residuals[0]), float(residuals[1]))}
     return Realization._trusted(ra, rb, rc, rd, info)

@@ -236,16 +236,28 @@ pub struct Solution {
     pub residual: f64,
 }
 
-/// Relative residual of the Lyapunov (Stein) equation.
+/// Frobenius norm scaled by the largest entry, so that entries beyond 1e154 do not
+/// overflow when squared (nalgebra's `norm` squares them as they are).
+fn frobenius(m: &DMatrix<f64>) -> f64 {
+    let big = m.iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
+    if big == 0.0 || !big.is_finite() {
+        return big;
+    }
+    big * m.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+}
+
+/// Relative residual of the Lyapunov (Stein) equation,
+/// `‖R‖ / (2‖A‖‖W‖ + ‖Q‖)` (or `‖R‖ / (‖A‖²‖W‖ + ‖W‖ + ‖Q‖)`), evaluated divided through
+/// by ‖W‖ so that neither quotient overflows where the ratio is representable.
 pub fn residual(a: &DMatrix<f64>, w: &DMatrix<f64>, q: &DMatrix<f64>, discrete: bool) -> f64 {
-    let (r, scale) = if discrete {
-        let aw = a * w;
-        (&aw * a.transpose() - w + q, a.norm() * a.norm() * w.norm() + w.norm() + q.norm())
-    } else {
-        let aw = a * w;
-        (&aw + aw.transpose() + q, 2.0 * a.norm() * w.norm() + q.norm())
-    };
-    if scale == 0.0 { 0.0 } else { r.norm() / scale }
+    let aw = a * w;
+    let r = if discrete { &aw * a.transpose() - w + q } else { &aw + aw.transpose() + q };
+    let (na, nw, nq, nr) = (frobenius(a), frobenius(w), frobenius(q), frobenius(&r));
+    if nw == 0.0 {
+        return if nq == 0.0 { 0.0 } else { nr / nq };
+    }
+    let scale_over_w = if discrete { na * na + 1.0 + nq / nw } else { 2.0 * na + nq / nw };
+    (nr / nw) / scale_over_w
 }
 
 /// `A W + W Aᵀ + Q = 0` (or `A W Aᵀ − W + Q = 0`) for a stable A and symmetric Q, given
