@@ -24,7 +24,9 @@
 //! the caller can read the gap and pass `order` or `tol`. The realization is internally
 //! balanced with respect to the finite Hankel matrix (the finite-horizon Gramians
 //! `O_nᵀ O_n = Γ_n Γ_nᵀ = Σ_n`). A kept singular value of exactly zero (order above the
-//! rank of H) cannot be inverted and is refused. Cost: one SVD of an (r p) × (c m) matrix.
+//! rank of H) cannot be inverted and is refused. Parameters beyond 1e150 or below 1e-150
+//! in magnitude are worked on scaled by an even power of two (exact; no decision changes).
+//! Cost: one SVD of an (r p) × (c m) matrix.
 //!
 //! # References
 //! B. L. Ho and R. E. Kalman, "Effective construction of linear state-variable models from
@@ -134,17 +136,26 @@ pub fn realize_markov(markov: &[f64], k: usize, p: usize, m: usize, order: Optio
         });
     }
 
+    // Parameters near the ends of the float64 range are worked on scaled by an even power of
+    // two σ = 4^e (exact): the singular values and tol scale by σ, B and C by √σ = 2^e, and A
+    // not at all, so no decision changes and nothing overflows where the result is finite.
+    let half_exponent = range_half_exponent(&markov[p * m..]);
+    let root_sigma = 2f64.powi(half_exponent);
+    let sigma = root_sigma * root_sigma;
     // H (block (i, j) = h_{i+j+1}) and the shifted H↑ (block (i, j) = h_{i+j+2}).
-    let hankel = Mat::from_fn(rows, cols, |x, y| h(x / p + y / m + 1, x % p, y % m));
-    let shifted = Mat::from_fn(rows, cols, |x, y| h(x / p + y / m + 2, x % p, y % m));
+    let hankel = Mat::from_fn(rows, cols, |x, y| h(x / p + y / m + 1, x % p, y % m) * sigma);
+    let shifted = Mat::from_fn(rows, cols, |x, y| h(x / p + y / m + 2, x % p, y % m) * sigma);
     let norm = hankel.norm_l2();
-    let tol = tol.unwrap_or_else(|| {
-        let nh = max_order as f64;
-        nh * nh * f64::EPSILON * norm
-    });
+    let tol_scaled = match tol {
+        Some(t) => t * sigma,
+        None => {
+            let nh = max_order as f64;
+            nh * nh * f64::EPSILON * norm
+        }
+    };
     let svd = hankel.thin_svd().map_err(|_| ModelError::NoConvergence { routine: "the SVD of the Hankel matrix" })?;
     let s: Vec<f64> = (0..max_order).map(|i| svd.S().column_vector()[i]).collect();
-    let n = order.unwrap_or_else(|| s.iter().filter(|&&x| x > tol).count());
+    let n = order.unwrap_or_else(|| s.iter().filter(|&&x| x > tol_scaled).count());
     if n > 0 && !(s[n - 1] > 0.0) {
         return Err(ModelError::BadValue {
             arg: "order",
@@ -162,8 +173,11 @@ pub fn realize_markov(markov: &[f64], k: usize, p: usize, m: usize, order: Optio
     let core = un.transpose() * &shifted * vn;
     let a = Matrix::from_row_major(n, n, (0..n * n).map(|x| core[(x / n, x % n)] / (root[x / n] * root[x % n])).collect())
         .expect("n x n");
-    for (what, mat) in [("A", &a), ("B", &bm), ("C", &cm)] {
-        if !mat.as_slice().iter().all(|x| x.is_finite()) {
+    let (bm, cm) = (bm.map(|x| x / root_sigma), cm.map(|x| x / root_sigma));
+    let s: Vec<f64> = s.iter().map(|x| x / sigma).collect();
+    let tol = tol.unwrap_or(tol_scaled / sigma);
+    for (what, values) in [("A", a.as_slice()), ("B", bm.as_slice()), ("C", cm.as_slice()), ("Hankel singular values", &s[..])] {
+        if !values.iter().all(|x| x.is_finite()) {
             return Err(ModelError::Overflow { what: format!("the realization's {what}") });
         }
     }
@@ -175,6 +189,18 @@ pub fn realize_markov(markov: &[f64], k: usize, p: usize, m: usize, order: Optio
         block_rows: r,
         block_cols: c,
     })
+}
+
+/// e with `4^e · max|x|` near 1 when the largest magnitude is beyond 1e150 or below
+/// 1e-150, else 0 (ordinary data are left bit for bit alone).
+fn range_half_exponent(x: &[f64]) -> i32 {
+    let big = x.iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
+    if big == 0.0 || (1.0e-150..=1.0e150).contains(&big) {
+        return 0;
+    }
+    // clamped so that 4^e stays a normal float64 (2^±1000); the scaled data are then within
+    // 2^±75 of 1, far inside the range
+    (-((big.log2() / 2.0).round() as i32)).clamp(-500, 500)
 }
 
 /// The fewest Markov parameters (including D) with `min(r p, c m) ≥ n`.
@@ -246,5 +272,43 @@ mod tests {
         assert_eq!(r.order, 1);
         assert!((r.realization.a.get(0, 0) - 0.5).abs() < 1e-14);
         assert!((r.realization.c.get(0, 0) * r.realization.b.get(0, 0) - 1.0).abs() < 1e-14);
+    }
+}
+
+#[cfg(test)]
+mod range_tests {
+    use super::*;
+
+    fn markov_of(scale: f64) -> Vec<f64> {
+        // h_i = 0.5^(i-1) · scale (i ≥ 1): the first-order system A = 0.5, B C = scale.
+        let mut h = vec![0.0];
+        for i in 1..12 {
+            h.push(0.5f64.powi(i - 1) * scale);
+        }
+        h
+    }
+
+    #[test]
+    fn scaled_parameters_give_the_scaled_realization() {
+        // (identity) Markov parameters times 4^k: same A, B and C times 2^k, singular values times 4^k.
+        let plain = realize_markov(&markov_of(1.0), 12, 1, 1, None, None).unwrap();
+        for k in [-500i32, -300, 300, 500] {
+            let factor = 4f64.powi(k / 2) * 4f64.powi(k - k / 2);
+            let big = realize_markov(&markov_of(factor), 12, 1, 1, None, None).unwrap();
+            assert_eq!(big.order, plain.order);
+            let a_rel = (big.realization.a.get(0, 0) - plain.realization.a.get(0, 0)).abs();
+            assert!(a_rel < 1e-15, "{k}: {a_rel}");
+            let bc = big.realization.b.get(0, 0) * big.realization.c.get(0, 0) / factor;
+            assert!((bc - plain.realization.b.get(0, 0) * plain.realization.c.get(0, 0)).abs() < 1e-15);
+            assert!(big.tol.is_finite() && big.singular_values.iter().all(|s| s.is_finite()));
+        }
+    }
+
+    #[test]
+    fn parameters_at_the_top_of_the_range_are_finite() {
+        let h = vec![0.0, 8.98846567e307, 8.98846567e307];
+        let r = realize_markov(&h, 3, 1, 1, None, None).unwrap();
+        assert!(r.tol.is_finite());
+        assert_eq!(r.order, 1);
     }
 }
