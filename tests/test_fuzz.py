@@ -22,7 +22,7 @@ ends the whole run (exit status 3) when one call takes longer than
 Examples per test come from the environment variable ``STATEWRIGHT_FUZZ_EXAMPLES`` (the
 hypothesis profile "ci"); the default keeps the whole file under a minute. The long run:
 
-    sh scripts/fuzz_long.sh        (6,000 examples per test: about 103,500 in all)
+    sh scripts/fuzz_long.sh        (5,000 examples per test: about 107,500 in all)
 """
 
 import copy
