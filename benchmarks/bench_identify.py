@@ -17,22 +17,13 @@ that both sides agree, so the work compared is the same.
 from __future__ import annotations
 
 import os
-import time
 
 import numpy as np
 import scipy
 import scipy.linalg as sl
 
 import statewright as sw
-
-
-def median_time(fn, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return float(np.median(times))
+from timing import median_time
 
 
 def stable_model(rng, n, m, p, discrete=False):

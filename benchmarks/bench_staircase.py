@@ -7,20 +7,11 @@ Prints a Markdown table of median times and ratios (staircase / SVD).
 from __future__ import annotations
 
 import os
-import time
 
 import numpy as np
 
 import statewright as sw
-
-
-def median_time(fn, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return float(np.median(times))
+from timing import median_time
 
 
 def main() -> None:

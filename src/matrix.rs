@@ -79,3 +79,13 @@ impl<T: Scalar> Matrix<T> {
         Matrix { rows: self.rows, cols: self.cols, data: self.data.iter().map(f).collect() }
     }
 }
+
+/// Frobenius norm of `values`, scaled by the largest magnitude so that entries beyond 1e154
+/// do not overflow when squared: finite whenever the norm itself is representable.
+pub fn frobenius_norm(values: &[f64]) -> f64 {
+    let big = values.iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
+    if big == 0.0 || !big.is_finite() {
+        return big;
+    }
+    big * values.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+}

@@ -236,14 +236,9 @@ pub struct Solution {
     pub residual: f64,
 }
 
-/// Frobenius norm scaled by the largest entry, so that entries beyond 1e154 do not
-/// overflow when squared (nalgebra's `norm` squares them as they are).
+/// Overflow-safe Frobenius norm (nalgebra's `norm` squares the entries as they are).
 fn frobenius(m: &DMatrix<f64>) -> f64 {
-    let big = m.iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
-    if big == 0.0 || !big.is_finite() {
-        return big;
-    }
-    big * m.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+    crate::matrix::frobenius_norm(m.as_slice())
 }
 
 /// Relative residual of the Lyapunov (Stein) equation,

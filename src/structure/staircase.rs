@@ -74,11 +74,7 @@ pub struct Staircase {
 /// Frobenius norm, scaled by the largest entry so that it does not overflow for entries
 /// near the top of the float64 range.
 pub fn frobenius(m: &Matrix<f64>) -> f64 {
-    let big = m.as_slice().iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
-    if big == 0.0 || !big.is_finite() {
-        return big;
-    }
-    big * m.as_slice().iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+    crate::matrix::frobenius_norm(m.as_slice())
 }
 
 /// `factor · ‖m‖_F` with the small factor applied before the norm is assembled, so that the
