@@ -83,9 +83,40 @@ impl<T: Scalar> Matrix<T> {
 /// Frobenius norm of `values`, scaled by the largest magnitude so that entries beyond 1e154
 /// do not overflow when squared: finite whenever the norm itself is representable.
 pub fn frobenius_norm(values: &[f64]) -> f64 {
-    let big = values.iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
+    scaled_frobenius_norm(1.0, values)
+}
+
+/// `factor · ‖values‖_F` with the factor applied before the norm is assembled, so that the
+/// product is finite whenever it is representable (a small factor times a norm that
+/// overflows, as in a tolerance `n² eps ‖A‖_F`).
+pub fn scaled_frobenius_norm(factor: f64, values: &[f64]) -> f64 {
+    let big = largest_magnitude(values);
     if big == 0.0 || !big.is_finite() {
-        return big;
+        return factor * big;
     }
-    big * values.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+    (factor * big) * values.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+}
+
+fn largest_magnitude<'a>(values: impl IntoIterator<Item = &'a f64>) -> f64 {
+    values.into_iter().fold(0.0f64, |acc, v| acc.max(v.abs()))
+}
+
+/// Magnitudes inside this band are worked on as they are; beyond it, routines that form
+/// sums of products (reflections, norms, SVDs) work on a copy scaled by a power of two.
+pub const SAFE_RANGE: std::ops::RangeInclusive<f64> = 1.0e-150..=1.0e150;
+
+/// e with `2^e · max|values|` near 1 when the largest magnitude is outside [`SAFE_RANGE`],
+/// else 0 (ordinary data are left bit for bit alone). |e| ≤ 1075.
+pub fn range_exponent<'a>(values: impl IntoIterator<Item = &'a f64>) -> i32 {
+    let big = largest_magnitude(values);
+    if big == 0.0 || SAFE_RANGE.contains(&big) {
+        return 0;
+    }
+    -(big.log2().round() as i32)
+}
+
+/// `2^e` for |e| up to about 2000, in two steps where one would leave the normal range
+/// (2^±1074 is not a normal float64, but its halves are).
+pub fn pow2(e: i32) -> f64 {
+    2f64.powi(e / 2) * 2f64.powi(e - e / 2)
 }

@@ -42,7 +42,7 @@
 //! `Overflow` for a non-finite result.
 
 use crate::error::{require_finite, ModelError, Result};
-use crate::matrix::Matrix;
+use crate::matrix::{range_exponent, Matrix};
 use crate::state_space::StateSpace;
 use faer::Mat;
 
@@ -191,16 +191,11 @@ pub fn realize_markov(markov: &[f64], k: usize, p: usize, m: usize, order: Optio
     })
 }
 
-/// e with `4^e · max|x|` near 1 when the largest magnitude is beyond 1e150 or below
-/// 1e-150, else 0 (ordinary data are left bit for bit alone).
+/// e with `4^e · max|x|` near 1 when the largest magnitude is outside the safe range, else
+/// 0, clamped so that 4^e stays a normal float64 (2^±1000); the scaled data are then
+/// within 2^±75 of 1, far inside the range.
 fn range_half_exponent(x: &[f64]) -> i32 {
-    let big = x.iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
-    if big == 0.0 || (1.0e-150..=1.0e150).contains(&big) {
-        return 0;
-    }
-    // clamped so that 4^e stays a normal float64 (2^±1000); the scaled data are then within
-    // 2^±75 of 1, far inside the range
-    (-((big.log2() / 2.0).round() as i32)).clamp(-500, 500)
+    (range_exponent(x) / 2).clamp(-500, 500)
 }
 
 /// The fewest Markov parameters (including D) with `min(r p, c m) ≥ n`.

@@ -43,7 +43,7 @@
 
 use super::householder::Reflector;
 use crate::error::{require_finite, ModelError, Result};
-use crate::matrix::Matrix;
+use crate::matrix::{pow2, range_exponent, scaled_frobenius_norm, Matrix};
 use crate::state_space::StateSpace;
 use faer::Mat;
 
@@ -77,38 +77,18 @@ pub fn frobenius(m: &Matrix<f64>) -> f64 {
     crate::matrix::frobenius_norm(m.as_slice())
 }
 
-/// `factor · ‖m‖_F` with the small factor applied before the norm is assembled, so that the
-/// product is finite whenever it is representable (the norm alone may not be).
-fn scaled_frobenius(factor: f64, m: &Matrix<f64>) -> f64 {
-    let big = m.as_slice().iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
-    if big == 0.0 || !big.is_finite() {
-        return factor * big;
-    }
-    (factor * big) * m.as_slice().iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
-}
-
 /// `n² eps max(‖A‖_F, ‖B‖_F)`, finite for every finite input (n² eps ‖·‖ is far below the
 /// float64 range even where the norm itself is not).
 pub fn default_tol(a: &Matrix<f64>, b: &Matrix<f64>) -> f64 {
     let n = a.rows() as f64;
     let factor = n * n * f64::EPSILON;
-    scaled_frobenius(factor, a).max(scaled_frobenius(factor, b))
+    scaled_frobenius_norm(factor, a.as_slice()).max(scaled_frobenius_norm(factor, b.as_slice()))
 }
 
-/// Entries beyond these magnitudes are brought back by a power of two before reducing.
-const RANGE_HIGH: f64 = 1.0e150;
-const RANGE_LOW: f64 = 1.0e-150;
-
-/// A power of two `s` with `s · max|m|` near 1 when the largest magnitude of the matrices is
-/// outside `[RANGE_LOW, RANGE_HIGH]`, else 1 (the common case is left bit for bit alone).
+/// A power of two `s` with `s · max|m|` near 1 when the matrices' largest magnitude is
+/// outside the safe range, else 1.
 fn range_scale(ms: &[&Matrix<f64>]) -> f64 {
-    let big = ms.iter().flat_map(|m| m.as_slice()).fold(0.0f64, |acc, v| acc.max(v.abs()));
-    if big == 0.0 || (RANGE_LOW..=RANGE_HIGH).contains(&big) {
-        return 1.0;
-    }
-    let exponent = -(big.log2().round() as i32);
-    // Two steps: 2^±1074 is not a normal float64, but its halves are.
-    2f64.powi(exponent / 2) * 2f64.powi(exponent - exponent / 2)
+    pow2(range_exponent(ms.iter().flat_map(|m| m.as_slice())))
 }
 
 fn scaled(m: &Matrix<f64>, s: f64) -> Matrix<f64> {
@@ -170,9 +150,6 @@ pub fn controllability_staircase(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Ma
     check_tol(tol)?;
     let s_ab = range_scale(&[a, b]);
     let s_c = c.map_or(1.0, |c| range_scale(&[c]));
-    if s_ab == 1.0 && s_c == 1.0 {
-        return reduce(a, b, c, tol.unwrap_or_else(|| default_tol(a, b)));
-    }
     let (a_s, b_s, c_s) = (scaled(a, s_ab), scaled(b, s_ab), c.map(|c| scaled(c, s_c)));
     let tol_s = match tol {
         Some(t) => t * s_ab,
