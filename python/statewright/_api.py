@@ -136,7 +136,7 @@ def faddeev_leverrier(a: Any, *, exact: bool = False, method: str = "auto") -> T
            [-2.,  0.]])
     """
     if v.check_flag(exact, "exact"):
-        am = _square_exact(a)
+        am = v.require_square(v.exact_matrix(a, "a"))
         n = am.shape[0]
         exact_coeffs, exact_adj = _core.faddeev_leverrier_exact(v.to_core(am), True)
         adj_arr = np.empty((n, n, n), dtype=object)
@@ -144,26 +144,16 @@ def faddeev_leverrier(a: Any, *, exact: bool = False, method: str = "auto") -> T
             adj_arr[k] = v.fraction_array(m, (n, n))
         return v.fraction_array(exact_coeffs, (n + 1,)), adj_arr
     method = v.check_option(method, "method", METHODS)
-    am = v.float_matrix(a, "a")
-    if am.shape[0] != am.shape[1]:
-        raise _core.ModelError(f"a: expected a square matrix, found shape {am.shape}")
+    am = v.require_square(v.float_matrix(a, "a"))
     coeffs, adj, _ = _core.faddeev_leverrier_float(am, method, True)
     return coeffs, adj
-
-
-def _square_exact(a: Any) -> np.ndarray:
-    am = v.exact_matrix(a, "a")
-    if am.shape[0] != am.shape[1]:
-        raise _core.ModelError(f"a: expected a square matrix, found shape {am.shape}")
-    return am
 
 
 def characteristic_polynomial(a: Any, *, exact: bool = False, method: str = "auto") -> np.ndarray:
     r"""Coefficients ``[1, c_1, ..., c_n]`` of ``det(sI - A)``, highest power first.
 
-    Float data: ``method="auto"`` returns the float Faddeev–LeVerrier result when its
-    certified double-double result when its running error bound certifies every
-    coefficient to 2^-56 relative (so the float64 result is within 0.625 ulp), and
+    Float data: ``method="auto"`` returns the certified double-double Faddeev–LeVerrier
+    result when its running error bound certifies every coefficient to 2^-56 relative (so the float64 result is within 0.625 ulp), and
     otherwise the exact recursion on the float data rounded once (every coefficient
     correctly rounded). See :func:`transfer_function`.
 
@@ -174,13 +164,11 @@ def characteristic_polynomial(a: Any, *, exact: bool = False, method: str = "aut
     [Fraction(1, 1), Fraction(-5, 1), Fraction(-2, 1)]
     """
     if v.check_flag(exact, "exact"):
-        am = _square_exact(a)
+        am = v.require_square(v.exact_matrix(a, "a"))
         exact_coeffs, _ = _core.faddeev_leverrier_exact(v.to_core(am), False)
         return v.fraction_array(exact_coeffs, (am.shape[0] + 1,))
     method = v.check_option(method, "method", METHODS)
-    am = v.float_matrix(a, "a")
-    if am.shape[0] != am.shape[1]:
-        raise _core.ModelError(f"a: expected a square matrix, found shape {am.shape}")
+    am = v.require_square(v.float_matrix(a, "a"))
     coeffs, _, _ = _core.faddeev_leverrier_float(am, method, False)
     return coeffs
 

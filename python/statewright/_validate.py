@@ -188,11 +188,16 @@ def fraction_array(data: Tuple[int, int, List[int], List[int]], shape: Tuple[int
     return out.reshape(shape)
 
 
+def require_square(a: np.ndarray) -> np.ndarray:
+    """``a`` itself when it is square (the matrix A of a model)."""
+    if a.shape[0] != a.shape[1]:
+        raise ModelError(f"a: expected a square matrix, found shape {a.shape}")
+    return a
+
+
 def check_model_shapes(a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray) -> None:
     """A n×n, B n×m, C p×n, D p×m."""
-    n = a.shape[0]
-    if a.shape[1] != n:
-        raise ModelError(f"a: expected a square matrix, found shape {a.shape}")
+    n = require_square(a).shape[0]
     if b.shape[0] != n:
         raise ModelError(f"b: expected {n} rows (one per state, as a is {n}x{n}), found shape {b.shape}")
     if c.shape[1] != n:
