@@ -45,6 +45,7 @@ from hypothesis import strategies as st
 from hypothesis.extra import numpy as hnp
 
 import statewright as sw
+from swtest_helpers import ALL_FORMS, COMPANION_FORMS
 
 # --------------------------------------------------------------------------------------
 # settings
@@ -64,16 +65,7 @@ CI = settings(settings.get_profile("ci"))
 # Exact arithmetic and dask graphs cost more per call: a quarter of the examples.
 CI_SLOW = settings(settings.get_profile("ci"), max_examples=max(10, EXAMPLES // 4))
 
-FORMS = (
-    "controllable_canonical",
-    "observable_canonical",
-    "controller",
-    "observer",
-    "controllability",
-    "observability",
-    "modal",
-)
-COMPANION_FORMS = FORMS[:-1]
+FORMS = ALL_FORMS
 METHODS = ("auto", "recursion", "exact")
 
 # --------------------------------------------------------------------------------------
@@ -436,14 +428,18 @@ def wrong_shape(shape):
 
 
 @st.composite
-def fuzz_float_arg(draw, shape, bad_rate=0.12):
-    """Mostly an array of ``shape``; sometimes junk or an array of a wrong shape."""
+def fuzz_arg(draw, array, shape, bad_rate):
+    """Mostly ``array(shape)``; sometimes junk or an ``array`` of a wrong shape."""
     roll = draw(st.floats(0, 1))
     if roll < bad_rate / 2:
         return draw(st.sampled_from(JUNK).map(copy.deepcopy))
     if roll < bad_rate:
-        return draw(float_array(draw(wrong_shape(shape))))
-    return draw(float_array(tuple(shape)))
+        return draw(array(draw(wrong_shape(shape))))
+    return draw(array(tuple(shape)))
+
+
+def fuzz_float_arg(shape, bad_rate=0.12):
+    return fuzz_arg(float_array, shape, bad_rate)
 
 
 ORDERS = st.sampled_from([0, 1, 1, 2, 2, 3, 3, 4, 4, 5, 6, 7, 8, 10, 12])
@@ -526,14 +522,8 @@ def exact_array(draw, shape, bad_rate=0.05):
     return arr
 
 
-@st.composite
-def fuzz_exact_arg(draw, shape, bad_rate=0.1):
-    roll = draw(st.floats(0, 1))
-    if roll < bad_rate / 2:
-        return draw(st.sampled_from(JUNK).map(copy.deepcopy))
-    if roll < bad_rate:
-        return draw(exact_array(draw(wrong_shape(shape))))
-    return draw(exact_array(tuple(shape)))
+def fuzz_exact_arg(shape, bad_rate=0.1):
+    return fuzz_arg(exact_array, shape, bad_rate)
 
 
 @st.composite
