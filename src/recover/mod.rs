@@ -19,6 +19,7 @@ pub mod certified;
 pub mod double_double;
 pub mod dyadic;
 pub mod faddeev_leverrier;
+pub mod modular;
 pub mod rational;
 
 use crate::error::{require_finite, ModelError, Result};

@@ -56,7 +56,7 @@ struct Cleared {
 /// remainder and a GCD the size of the denominator, quadratic in its length. Calibrated on
 /// this machine class: a 6×6 matrix of 148,000-bit integers takes about 2.3 s for the
 /// recursion and 0.1 s per reduced adjugate entry; a 40×40 matrix of 16-bit integers 0.15 s.
-fn estimated_seconds(n: usize, bits: u64, reductions: usize) -> f64 {
+pub fn estimated_seconds(n: usize, bits: u64, reductions: usize) -> f64 {
     let n = n as f64;
     let words = (bits as f64 / 64.0).max(1.0);
     n.powi(4) * 5.0e-8 + 0.5 * n.powi(5) * words.powf(1.585) * 3.0e-9 + reductions as f64 * words * words * 2.0e-8
