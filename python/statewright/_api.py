@@ -116,7 +116,10 @@ def faddeev_leverrier(a: Any, *, exact: bool = False, method: str = "auto") -> T
     exact : bool
         Exact rational input and output (object arrays of Fractions).
     method : {"auto", "recursion", "exact"}
-        For float data (see :func:`transfer_function` for the accuracy of each).
+        For float data (see :func:`transfer_function` for the accuracy of each). Here the
+        exact evaluation runs the recursion in big integers (the adjugates need it), so
+        with ``method="auto"`` an order above 64 whose double-double result cannot be
+        certified raises ModelError rather than take minutes.
 
     Returns
     -------
@@ -153,9 +156,10 @@ def characteristic_polynomial(a: Any, *, exact: bool = False, method: str = "aut
     r"""Coefficients ``[1, c_1, ..., c_n]`` of ``det(sI - A)``, highest power first.
 
     Float data: ``method="auto"`` returns the certified double-double Faddeev–LeVerrier
-    result when its running error bound certifies every coefficient to 2^-56 relative (so the float64 result is within 0.625 ulp), and
-    otherwise the exact recursion on the float data rounded once (every coefficient
-    correctly rounded). See :func:`transfer_function`.
+    result when its running error bound certifies every coefficient to 2^-56 relative (so
+    the float64 result is within 0.625 ulp), and otherwise the exact characteristic
+    polynomial of the float data (multi-modular Hessenberg method) rounded once, every
+    coefficient correctly rounded. See :func:`transfer_function`.
 
     Examples
     --------
@@ -210,9 +214,11 @@ def transfer_function(
           componentwise running error bound; accepted when the bound certifies every
           coefficient to 2^-56 relative before the final rounding (so the float64 result
           is within 0.625 ulp of the exact value), otherwise the ``"exact"`` evaluation.
-        * ``"exact"``: the recursion in big integers on the float data (each float64 is a
-          dyadic rational), each coefficient rounded once: correctly rounded, however
-          spread the eigenvalues. Cost grows with the bit length (milliseconds at n = 20).
+        * ``"exact"``: the exact characteristic polynomial and numerators of the float data
+          (each float64 is a dyadic rational), each coefficient rounded once: correctly
+          rounded, however spread the eigenvalues. Computed by Hessenberg reductions modulo
+          word-size primes and Chinese remaindering (numerators through the matrix
+          determinant lemma): about 5 ms at n = 20 and 50 ms at n = 40 with spread poles.
         * ``"recursion"``: the plain float64 recursion, unchecked. Accurate for small,
           well-scaled models; catastrophically inaccurate when eigenvalue magnitudes are
           spread (relative errors of 1e-1 at n = 8 over four decades, far worse at n = 20).
@@ -232,10 +238,10 @@ def transfer_function(
     ------
     ModelError
         Shapes that do not fit, NaN or infinity, a result outside the float64 range; an
-        order above 256 (the recursion costs about n**4 operations); with
-        ``method="auto"``, an order above 64 whose double-double result cannot be certified
-        (the exact fallback is limited to order 64: ``method="exact"`` forces it,
-        ``method="recursion"`` returns the unchecked float64 value). ``exact=True`` is
+        order above 256 (the recursion costs about n**4 operations); an exact evaluation
+        (``method="exact"``, or the fallback of ``"auto"``) whose estimated time exceeds
+        30 s, judged before any work from the order and the bit length of the data
+        (``method="recursion"`` returns the unchecked float64 value). ``exact=True`` is
         limited to order 64.
 
     Examples

@@ -9,8 +9,10 @@
 //!   ([`certified`]), accepted when the bound certifies every result to [`CERTIFIED_TOLERANCE`]
 //!   relative before the final rounding to float64 (so the float64 result is within
 //!   `0.5 + 1/8` units in the last place: correctly rounded except within 1/8 ulp of a tie);
-//! * the exact recursion on the float data, rounded once ([`dyadic`]): correctly rounded
-//!   results whatever the conditioning.
+//! * the exact characteristic polynomial and transfer matrix of the float data, rounded once
+//!   ([`dyadic`], by the multi-modular Hessenberg method of [`modular`]; the adjugates by the
+//!   exact recursion): correctly rounded results whatever the conditioning, refused only
+//!   beyond the exact-arithmetic time budget.
 //!
 //! `Method::Auto` tries the first and falls back to the second. The plain float recursion
 //! without a check is on offer as `Method::Recursion` for studies of its accuracy.
@@ -34,9 +36,11 @@ pub const CERTIFIED_TOLERANCE: f64 = 1.0 / 72_057_594_037_927_936.0;
 /// Largest order the recursion accepts (it costs about n⁴ operations: a few seconds in
 /// double-double at this size).
 pub const MAX_RECURSION_ORDER: usize = 256;
-/// Largest order for which `Method::Auto` falls back to the exact recursion (big-integer
-/// cost grows like n⁵·bits; about a second here with spread data).
-pub const MAX_EXACT_FALLBACK_ORDER: usize = 64;
+/// Largest order for which `Method::Auto` falls back to the exact big-integer recursion when
+/// the adjugates are asked for (cost grows like n⁵·bits). The coefficients and transfer
+/// matrices alone fall back to the multi-modular method at any order up to
+/// [`MAX_RECURSION_ORDER`], within the exact-arithmetic time budget.
+pub const MAX_EXACT_ADJUGATE_ORDER: usize = 64;
 
 fn check_recursion_order(n: usize) -> Result<()> {
     if n > MAX_RECURSION_ORDER {
@@ -48,15 +52,15 @@ fn check_recursion_order(n: usize) -> Result<()> {
     Ok(())
 }
 
-/// `Method::Auto` when the double-double bound does not certify and the exact fallback would
-/// take too long: refuse rather than return an uncertified value silently.
+/// `Method::Auto` asked for adjugates when the double-double bound does not certify and the
+/// exact fallback would take too long: refuse rather than return an uncertified value silently.
 fn uncertified(n: usize) -> ModelError {
     ModelError::BadValue {
         arg: "method",
         detail: format!(
-            "the certified double-double recursion could not certify this order-{n} model and the exact \
-             fallback is limited to order {MAX_EXACT_FALLBACK_ORDER}; method='exact' forces it (slow), \
-             method='recursion' returns the unchecked float64 result"
+            "the certified double-double recursion could not certify the adjugates of this order-{n} model \
+             and their exact fallback is limited to order {MAX_EXACT_ADJUGATE_ORDER}; method='exact' forces it \
+             (slow), method='recursion' returns the unchecked float64 result"
         ),
     }
 }
@@ -154,7 +158,7 @@ pub fn faddeev_leverrier_f64(a: &Matrix<f64>, method: Method, with_adjugates: bo
         if let Some((seq, acc)) = fast_path(a, method, with_adjugates, None)? {
             return Ok((seq.coeffs, split_adjugates(seq.adjugates, n), acc));
         }
-        if n > MAX_EXACT_FALLBACK_ORDER {
+        if with_adjugates && n > MAX_EXACT_ADJUGATE_ORDER {
             return Err(uncertified(n));
         }
     }
@@ -172,9 +176,6 @@ pub fn transfer_function_f64(ss: &StateSpace<f64>, method: Method) -> Result<(Ve
     if method != Method::Exact {
         if let Some((seq, acc)) = fast_path(&ss.a, method, false, Some(ss))? {
             return Ok((seq.numerator, seq.coeffs, acc));
-        }
-        if n > MAX_EXACT_FALLBACK_ORDER {
-            return Err(uncertified(n));
         }
     }
     let (num, den) = dyadic::transfer_function_dyadic(ss)?;
