@@ -118,3 +118,45 @@ def test_refused_beyond_the_time_budget_before_any_work():
     assert time.perf_counter() - started < 5.0
     assert names_argument(str(info.value), "a")
     assert "method='recursion'" in str(info.value)
+
+
+# ---- exact rational data (exact=True): coefficients and transfer functions beyond order 64
+
+
+def test_exact_rational_mode_beyond_order_64():
+    # (identity) as above, with rational entries: P U P^T for U upper triangular with
+    # diagonal q_i, so det(sI - A) = prod (s - q_i), and the (n, n) cofactor gives the
+    # numerator prod_{i<n} (s - q_i) for b = P e_n, c = e_n^T P^T.
+    n = 80
+    rng = np.random.default_rng(80)
+    diag = [Fraction(int(rng.integers(-50, 50)), int(rng.integers(1, 9))) for _ in range(n)]
+    u = np.empty((n, n), dtype=object)
+    for i in range(n):
+        for j in range(n):
+            u[i, j] = diag[i] if i == j else (Fraction(int(rng.integers(-9, 9)), int(rng.integers(1, 5))) if j > i else Fraction(0))
+    perm = rng.permutation(n)
+    a = u[np.ix_(perm, perm)]  # P U P^T with P the permutation matrix of perm
+    last = int(np.where(perm == n - 1)[0][0])
+    b = np.array([[Fraction(int(i == last))] for i in range(n)], dtype=object)
+    c = b.T.copy()
+    d = np.array([[Fraction(1, 3)]], dtype=object)
+    num, den = sw.transfer_function(a, b, c, d, exact=True)
+    char = _product_of_factors_exact(diag)
+    assert list(den) == char
+    assert list(sw.characteristic_polynomial(a, exact=True)) == char
+    cofactor = [Fraction(0)] + _product_of_factors_exact(diag[:-1])
+    assert list(num[0, 0]) == [x + Fraction(1, 3) * y for x, y in zip(cofactor, char)]
+
+
+def _product_of_factors_exact(roots):
+    poly = [Fraction(1)]
+    for r in roots:
+        poly = [x - r * y for x, y in zip(poly + [Fraction(0)], [Fraction(0)] + poly)]
+    return poly
+
+
+def test_exact_adjugates_keep_the_order_64_limit():
+    a = np.eye(65, dtype=int)
+    with pytest.raises(sw.ModelError, match="request too large") as info:
+        sw.faddeev_leverrier(a, exact=True)
+    assert names_argument(str(info.value), "a")

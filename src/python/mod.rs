@@ -276,22 +276,26 @@ fn realize_exact(py: Python<'_>, num: ExactIn, den: ExactIn, form: &str) -> PyRe
     Ok((exact_out(ss.a), exact_out(ss.b), exact_out(ss.c), exact_out(ss.d)))
 }
 
-/// Largest order of the exact rational recursion (n⁴ big-number operations).
-const MAX_EXACT_ORDER: usize = 64;
+/// Largest order of the exact rational recursion when adjugates are returned (n⁴
+/// big-number operations); coefficients and transfer matrices (the multi-modular route) go
+/// up to the recursion's order limit. Both also answer to the core's time budget.
+const MAX_EXACT_ADJUGATE_ORDER: usize = 64;
 
-fn check_exact_order(n: usize) -> PyResult<()> {
-    if n > MAX_EXACT_ORDER {
-        return Err(to_py(CoreError::TooLarge {
-            arg: "a",
-            detail: format!("order {n} exceeds the limit {MAX_EXACT_ORDER} of the exact rational recursion"),
-        }));
+fn check_exact_order(n: usize, with_adjugates: bool) -> PyResult<()> {
+    let (limit, what) = if with_adjugates {
+        (MAX_EXACT_ADJUGATE_ORDER, "the exact adjugate sequence")
+    } else {
+        (recover::MAX_RECURSION_ORDER, "exact rational arithmetic")
+    };
+    if n > limit {
+        return Err(to_py(CoreError::TooLarge { arg: "a", detail: format!("order {n} exceeds the limit {limit} of {what}") }));
     }
     Ok(())
 }
 
 #[pyfunction]
 fn faddeev_leverrier_exact(py: Python<'_>, a: ExactIn, with_adjugates: bool) -> PyResult<(ExactOut, Vec<ExactOut>)> {
-    check_exact_order(a.0)?;
+    check_exact_order(a.0, with_adjugates)?;
     let a = exact_matrix("a", a)?;
     if a.rows() != a.cols() {
         return Err(to_py(CoreError::Shape { arg: "a", expected: "a square matrix".into(), found: format!("shape ({}, {})", a.rows(), a.cols()) }));
@@ -302,7 +306,7 @@ fn faddeev_leverrier_exact(py: Python<'_>, a: ExactIn, with_adjugates: bool) -> 
 
 #[pyfunction]
 fn transfer_function_exact(py: Python<'_>, a: ExactIn, b: ExactIn, c: ExactIn, d: ExactIn) -> PyResult<(ExactOut, ExactOut)> {
-    check_exact_order(a.0)?;
+    check_exact_order(a.0, false)?;
     let ss = StateSpace::new(exact_matrix("a", a)?, exact_matrix("b", b)?, exact_matrix("c", c)?, exact_matrix("d", d)?)
         .map_err(to_py)?;
     let (num, den) = run(py, move || recover::rational::transfer_function_rational(&ss))?;

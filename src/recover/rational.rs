@@ -9,19 +9,23 @@
 //! The recursion over `BigRational` reduces every intermediate sum to lowest terms, one
 //! big-integer GCD per operation, and the GCDs dominate (a 6×6 matrix of 4000-bit fractions
 //! ran for minutes). Instead each matrix is written `X = M_X / L_X` with `L_X` the least
-//! common multiple of its denominators and `M_X` an integer matrix. The recursion runs on
-//! `M_A` in big integers (every division by k is exact there), and homogeneity puts the
-//! scale back: `c_k(A) = c_k(M_A) / L_A^k`, `N_k(A) = N_k(M_A) / L_A^k`, and the numerator
-//! term `C N_k B = M_C N_k(M_A) M_B / (L_C L_A^k L_B)`. Each result is reduced to lowest
-//! terms once, at the end.
+//! common multiple of its denominators and `M_X` an integer matrix, and homogeneity puts
+//! the scale back: `c_k(A) = c_k(M_A) / L_A^k`, `N_k(A) = N_k(M_A) / L_A^k`. The
+//! coefficients `c_k(M_A)` come from the multi-modular Hessenberg method ([`modular`]), and
+//! each transfer-matrix numerator entry from two such characteristic polynomials by the
+//! matrix determinant lemma (see [`transfer_function_rational`]). The adjugates need the
+//! recursion on `M_A` in big integers (every division by k is exact there). Each result is
+//! reduced to lowest terms once, at the end.
 //!
 //! # Numerical aspects
 //! Exact; the results equal the `BigRational` recursion's bit for bit (both are the unique
-//! reduced fractions). Cost: about n⁴ big-integer multiplications of operands up to
-//! n·(bits of `M_A`) bits, and no GCD until the final reduction, which peels common
-//! factors one denominator at a time (see `reduced`). Measured against the `BigRational`
-//! recursion (release build): 50 to 450 times faster on random p/q entries at orders 10
-//! to 40. The common denominator can be far longer than any entry (the lcm of n²
+//! reduced fractions). Cost: the modular route takes about n³ word operations per 61 bits
+//! of the coefficients' Hadamard bound; the recursion about n⁴ big-integer multiplications
+//! of operands up to n·(bits of `M_A`) bits. Neither forms a GCD until the final
+//! reduction, which peels common factors one denominator at a time (see `reduced`).
+//! Measured against the `BigRational` recursion (release build): the integer recursion was
+//! 50 to 450 times faster on random p/q entries at orders 10 to 40, and the modular route
+//! is faster again. The common denominator can be far longer than any entry (the lcm of n²
 //! unrelated denominators), so the time is estimated from the order and the bit length of
 //! the cleared integers before the work starts, and a request beyond
 //! [`EXACT_TIME_BUDGET_SECONDS`] is refused with `TooLarge`; the lcm is abandoned as soon
@@ -37,6 +41,7 @@
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
 use crate::recover::faddeev_leverrier::faddeev_leverrier;
+use crate::recover::modular;
 use crate::state_space::StateSpace;
 use num_bigint::BigInt;
 use num_integer::Integer;
@@ -143,42 +148,162 @@ fn reduced(numer: BigInt, bases: &[(&BigInt, usize)]) -> BigRational {
     BigRational::new_raw(rest, denom)
 }
 
+/// Bits of the Hadamard bound ([`modular::coefficient_bits`]) for an order-n matrix whose
+/// entries have at most `bits` bits, without forming it.
+fn bound_for(n: usize, bits: u64) -> u64 {
+    let nu = n as u64;
+    let half_log_n = (u64::BITS - nu.saturating_sub(1).leading_zeros()).div_ceil(2) as u64;
+    nu * (bits + half_log_n) + nu + 1
+}
+
+/// Estimated seconds of the modular route: `count` characteristic polynomials of order n on
+/// entries of `bits` bits, and `reductions` results brought to lowest terms (each about a
+/// GCD the size of its denominator, costed as in [`estimated_seconds`]).
+fn modular_seconds(n: usize, bits: u64, count: usize, reductions: usize) -> f64 {
+    let bound = bound_for(n, bits);
+    let words = (bound as f64 / 64.0).max(1.0);
+    modular::estimated_seconds(n, bound, bits, count) + reductions as f64 * words * words * 2.0e-8 / (n.max(1) as f64)
+}
+
+/// The largest integer size (bits) within the budget for the modular route at order n.
+fn modular_bit_budget(n: usize, count: usize, reductions: usize) -> u64 {
+    let (mut low, mut high) = (64u64, 1u64 << 40);
+    while low + 1 < high {
+        let mid = low + (high - low) / 2;
+        if modular_seconds(n, mid, count, reductions) <= EXACT_TIME_BUDGET_SECONDS { low = mid } else { high = mid }
+    }
+    low
+}
+
+fn max_bits(m: &Matrix<BigInt>) -> u64 {
+    m.as_slice().iter().map(|v| v.bits()).max().unwrap_or(0)
+}
+
 /// Coefficients `[1, c_1, ..., c_n]` and adjugates `N_0 .. N_{n−1}` of a rational matrix.
 ///
-/// Refused with [`ModelError::TooLarge`] when the estimated time exceeds
-/// [`EXACT_TIME_BUDGET_SECONDS`].
+/// The coefficients alone come from the multi-modular Hessenberg method ([`modular`]) on
+/// the cleared integer matrix; the adjugates need the integer recursion. Refused with
+/// [`ModelError::TooLarge`] when the estimated time exceeds [`EXACT_TIME_BUDGET_SECONDS`].
 pub fn faddeev_leverrier_rational(a: &Matrix<BigRational>, with_adjugates: bool)
     -> Result<(Vec<BigRational>, Vec<Matrix<BigRational>>)> {
     let n = a.rows();
-    let reductions = if with_adjugates { n * n * n + n } else { n };
+    if !with_adjugates {
+        let cleared = clear_denominators("a", a, n, modular_bit_budget(n, 1, n).max(bit_budget(n, n)))?;
+        let bits = max_bits(&cleared.m);
+        let (modular_s, recursion_s) = (modular_seconds(n, bits, 1, n), estimated_seconds(n, bits, n));
+        if modular_s.min(recursion_s) > EXACT_TIME_BUDGET_SECONDS {
+            return Err(too_costly("a", n, bits, modular_bit_budget(n, 1, n).max(bit_budget(n, n))));
+        }
+        let coeffs = if modular_s <= recursion_s {
+            modular::characteristic_polynomial(&cleared.m)
+        } else {
+            faddeev_leverrier(&cleared.m).0
+        };
+        let l = &cleared.denominator;
+        return Ok((coeffs.into_iter().enumerate().map(|(k, c)| reduced(c, &[(l, k)])).collect(), Vec::new()));
+    }
+    let reductions = n * n * n + n;
     let cleared = clear_denominators("a", a, n, bit_budget(n, reductions))?;
     let l = &cleared.denominator;
     let (coeffs, adjugates) = faddeev_leverrier(&cleared.m);
     let coeffs = coeffs.into_iter().enumerate().map(|(k, c)| reduced(c, &[(l, k)])).collect();
-    let adjugates = if with_adjugates {
-        adjugates
-            .into_iter()
-            .enumerate()
-            .map(|(k, nk)| {
-                let data = nk.into_vec().into_iter().map(|v| reduced(v, &[(l, k)])).collect();
-                Matrix::from_row_major(n, n, data).expect("n x n")
-            })
-            .collect()
-    } else {
-        Vec::new()
-    };
+    let adjugates = adjugates
+        .into_iter()
+        .enumerate()
+        .map(|(k, nk)| {
+            let data = nk.into_vec().into_iter().map(|v| reduced(v, &[(l, k)])).collect();
+            Matrix::from_row_major(n, n, data).expect("n x n")
+        })
+        .collect();
     Ok((coeffs, adjugates))
 }
 
 /// Numerator (p, m, n+1 row-major) and monic denominator of `C (sI−A)⁻¹ B + D`, exactly.
-/// Refused like [`faddeev_leverrier_rational`]; B, C and D are held to the same bit budget.
+///
+/// By the matrix determinant lemma, `c_i adj(sI − A) b_j = det(sI − A + b_j c_i) − det(sI − A)`.
+/// Over common denominators, `A − b_j c_i = M' / (L_A L_B L_C)` with
+/// `M' = M_A L_B L_C − L_A M_B[:, j] M_C[i, :]`, so each numerator entry is
+/// `(c_k(M') L_D + (M_D − L_D) c_k(M_A) (L_B L_C)^k) / (L_A^k L_B^k L_C^k L_D)`, from two
+/// exact characteristic polynomials ([`modular`]). Refused like
+/// [`faddeev_leverrier_rational`]; B, C and D are held to the same bit budget, and the
+/// perturbed matrices' size enters the time estimate.
 pub fn transfer_function_rational(ss: &StateSpace<BigRational>) -> Result<(Vec<BigRational>, Vec<BigRational>)> {
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
-    let budget = bit_budget(n, n * (p * m + 1));
+    let count = p * m + 1;
+    let reductions = count * (n + 1);
+    let budget = modular_bit_budget(n, count, reductions).max(bit_budget(n, n * count));
     let a = clear_denominators("a", &ss.a, n, budget)?;
     let b = clear_denominators("b", &ss.b, n, budget)?;
     let c = clear_denominators("c", &ss.c, n, budget)?;
     let d = clear_denominators("d", &ss.d, n, budget)?;
+    let (la, lb, lc, ld) = (&a.denominator, &b.denominator, &c.denominator, &d.denominator);
+    let lbc = lb * lc;
+    let perturbed_bits = (max_bits(&a.m) + lbc.bits()).max(la.bits() + max_bits(&b.m) + max_bits(&c.m)) + 1;
+    // Few states with long entries favour the recursion (n⁴ big multiplications), more
+    // states the modular route (n³ word operations per prime): take the cheaper estimate.
+    let modular_s = modular_seconds(n, perturbed_bits, count, reductions);
+    let recursion_s = estimated_seconds(n, max_bits(&a.m), n * count);
+    if modular_s.min(recursion_s) > EXACT_TIME_BUDGET_SECONDS {
+        return Err(too_costly("a", n, perturbed_bits, budget));
+    }
+    let cleared = [&a, &b, &c, &d];
+    Ok(if recursion_s < modular_s {
+        transfer_function_by_recursion(ss, cleared)
+    } else {
+        transfer_function_by_determinant_lemma(ss, cleared)
+    })
+}
+
+/// The multi-modular route: two exact characteristic polynomials per entry (see
+/// [`transfer_function_rational`]).
+fn transfer_function_by_determinant_lemma(ss: &StateSpace<BigRational>, [a, b, c, d]: [&Cleared; 4])
+    -> (Vec<BigRational>, Vec<BigRational>) {
+    let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
+    let (la, lb, lc, ld) = (&a.denominator, &b.denominator, &c.denominator, &d.denominator);
+    let lbc = lb * lc;
+    let coeffs = modular::characteristic_polynomial(&a.m);
+    let den: Vec<BigRational> = coeffs.iter().enumerate().map(|(k, v)| reduced(v.clone(), &[(la, k)])).collect();
+    // (L_B L_C)^k for k = 0..n
+    let mut lbc_powers = vec![BigInt::one()];
+    for k in 1..=n {
+        let next = &lbc_powers[k - 1] * &lbc;
+        lbc_powers.push(next);
+    }
+    let mut num = vec![BigRational::zero(); p * m * (n + 1)];
+    for i in 0..p {
+        for j in 0..m {
+            let base = (i * m + j) * (n + 1);
+            num[base] = ss.d.get(i, j).clone();
+            let md = d.m.get(i, j);
+            let column_zero = (0..n).all(|r| b.m.get(r, j).is_zero());
+            let row_zero = (0..n).all(|s| c.m.get(i, s).is_zero());
+            if column_zero || row_zero {
+                // c_i adj(sI − A) b_j = 0: the entry is d_ij det(sI − A).
+                for k in 1..=n {
+                    num[base + k] = reduced(&coeffs[k] * md, &[(la, k), (ld, 1)]);
+                }
+                continue;
+            }
+            let data = (0..n * n)
+                .map(|idx| {
+                    let (r, s) = (idx / n, idx % n);
+                    a.m.get(r, s) * &lbc - la * (b.m.get(r, j) * c.m.get(i, s))
+                })
+                .collect();
+            let perturbed = modular::characteristic_polynomial(&Matrix::from_row_major(n, n, data).expect("n x n"));
+            let md_minus_ld = md - ld;
+            for k in 1..=n {
+                let numer = &perturbed[k] * ld + &md_minus_ld * &coeffs[k] * &lbc_powers[k];
+                num[base + k] = reduced(numer, &[(la, k), (lb, k), (lc, k), (ld, 1)]);
+            }
+        }
+    }
+    (num, den)
+}
+
+/// The big-integer route: `C N_k B + c_{k+1} D` from the adjugate sequence of `M_A`.
+fn transfer_function_by_recursion(ss: &StateSpace<BigRational>, [a, b, c, d]: [&Cleared; 4]) -> (Vec<BigRational>, Vec<BigRational>) {
+    let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
     let (la, lb, lc, ld) = (&a.denominator, &b.denominator, &c.denominator, &d.denominator);
     let (coeffs, adjugates) = faddeev_leverrier(&a.m);
     let den: Vec<BigRational> = coeffs.iter().enumerate().map(|(k, v)| reduced(v.clone(), &[(la, k)])).collect();
@@ -202,7 +327,7 @@ pub fn transfer_function_rational(ss: &StateSpace<BigRational>) -> Result<(Vec<B
             }
         }
     }
-    Ok((num, den))
+    (num, den)
 }
 
 #[cfg(test)]
@@ -234,6 +359,37 @@ mod tests {
         let (coeffs_ref, adj_ref) = faddeev_leverrier(&a);
         assert_eq!(coeffs, coeffs_ref);
         assert_eq!(adj, adj_ref);
+    }
+
+    #[test]
+    fn determinant_lemma_numerators_agree_with_the_recursion() {
+        // (identity) order 7, two outputs and three inputs, a zero column of B, a zero row
+        // of C, and a D entry equal to 1 (the d − 1 term vanishes): every entry equals the
+        // BigRational recursion's C N_k B + c_k D.
+        let mut seed = 99u64;
+        let mut next = move |modulus: i64| {
+            seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            ((seed >> 33) as i64) % modulus
+        };
+        let mut fraction = |zero: bool| if zero { q(0, 1) } else { q(next(41) - 20, next(12) + 1) };
+        let (n, p, m) = (7, 2, 3);
+        let a = Matrix::from_row_major(n, n, (0..n * n).map(|_| fraction(false)).collect()).unwrap();
+        let b = Matrix::from_row_major(n, m, (0..n * m).map(|k| fraction(k % m == 1)).collect()).unwrap();
+        let c = Matrix::from_row_major(p, n, (0..p * n).map(|k| fraction(k / n == 1)).collect()).unwrap();
+        let mut d = Matrix::from_row_major(p, m, (0..p * m).map(|_| fraction(false)).collect()).unwrap();
+        d.set(0, 0, q(1, 1));
+        let ss = StateSpace::new(a, b, c, d).unwrap();
+        let (num_ref, den_ref) = transfer_function(&ss);
+        let (num, den) = transfer_function_rational(&ss).unwrap();
+        assert_eq!((&num, &den), (&num_ref, &den_ref));
+        // both routes, whichever the cost estimate picks
+        let cleared: Vec<Cleared> = [("a", &ss.a), ("b", &ss.b), ("c", &ss.c), ("d", &ss.d)]
+            .into_iter()
+            .map(|(arg, x)| clear_denominators(arg, x, n, 10_000).unwrap())
+            .collect();
+        let parts = [&cleared[0], &cleared[1], &cleared[2], &cleared[3]];
+        assert_eq!(transfer_function_by_recursion(&ss, parts), (num_ref.clone(), den_ref.clone()));
+        assert_eq!(transfer_function_by_determinant_lemma(&ss, parts), (num_ref, den_ref));
     }
 
     #[test]
