@@ -256,3 +256,75 @@ pub fn transfer_function_dyadic(ss: &StateSpace<f64>) -> Result<(Vec<f64>, Vec<f
     }
     Ok((num, den))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::recover::faddeev_leverrier::transfer_function;
+    use num_rational::BigRational;
+
+    struct Lcg(u64);
+    impl Lcg {
+        fn next(&mut self) -> u64 {
+            self.0 = self.0.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            self.0 >> 11
+        }
+        /// Zero, a small integer, a subnormal, or a random mantissa at a random exponent.
+        fn entry(&mut self, exponent_range: i32) -> f64 {
+            let sign = if self.next() & 1 == 1 { -1.0 } else { 1.0 };
+            match self.next() % 8 {
+                0 | 1 => 0.0,
+                2 => sign * (self.next() % 5) as f64,
+                3 => sign * 5e-324 * (1 + self.next() % 1000) as f64,
+                _ => {
+                    let mantissa = 1.0 + (self.next() % (1 << 52)) as f64 / (1u64 << 52) as f64;
+                    let e = (self.next() % (2 * exponent_range as u64 + 1)) as i32 - exponent_range;
+                    sign * mantissa * 2f64.powi(e)
+                }
+            }
+        }
+    }
+
+    fn exact(x: &Matrix<f64>) -> Matrix<BigRational> {
+        x.map(|&v| BigRational::from_float(v).expect("finite"))
+    }
+
+    /// The exact rational rounded to the nearest float64 (its denominator is a power of two).
+    fn round(q: &BigRational) -> Option<f64> {
+        let shift = q.denom().bits() as i64 - 1;
+        round_scaled(q.numer(), -shift)
+    }
+
+    #[test]
+    fn agrees_with_the_rational_recursion_rounded() {
+        // (identity) the modular route with the determinant lemma, and the coefficients alone,
+        // equal the BigRational Faddeev–LeVerrier recursion on the same dyadic data, rounded
+        // once; overflow on one side means overflow on the other.
+        let mut rng = Lcg(4242);
+        for case in 0..400 {
+            let n = (rng.next() % 6) as usize;
+            let (p, m) = (1 + (rng.next() % 3) as usize, 1 + (rng.next() % 3) as usize);
+            let range = [4, 60, 300][case % 3];
+            let mut draw = |r: usize, c: usize| {
+                Matrix::from_row_major(r, c, (0..r * c).map(|_| rng.entry(range)).collect()).unwrap()
+            };
+            let ss = StateSpace::new(draw(n, n), draw(n, m), draw(p, n), draw(p, m)).unwrap();
+            let exact_ss = StateSpace::new(exact(&ss.a), exact(&ss.b), exact(&ss.c), exact(&ss.d)).unwrap();
+            let (num_ref, den_ref) = transfer_function(&exact_ss);
+            let expect: Option<(Vec<f64>, Vec<f64>)> = (|| {
+                Some((num_ref.iter().map(round).collect::<Option<_>>()?, den_ref.iter().map(round).collect::<Option<_>>()?))
+            })();
+            match (transfer_function_dyadic(&ss), expect) {
+                (Ok(got), Some(want)) => assert_eq!(got, want, "case {case}: {ss:?}"),
+                (Err(ModelError::Overflow { .. }), None) => {}
+                (got, want) => panic!("case {case}: {got:?} vs {want:?}"),
+            }
+            let coeffs: Option<Vec<f64>> = den_ref.iter().map(round).collect();
+            match (faddeev_leverrier_dyadic(&ss.a, false), coeffs) {
+                (Ok((got, _)), Some(want)) => assert_eq!(got, want, "case {case}"),
+                (Err(ModelError::Overflow { .. }), None) => {}
+                (got, want) => panic!("case {case}: {got:?} vs {want:?}"),
+            }
+        }
+    }
+}
