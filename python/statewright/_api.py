@@ -241,8 +241,8 @@ def transfer_function(
         order above 256 (the recursion costs about n**4 operations); an exact evaluation
         (``method="exact"``, or the fallback of ``"auto"``) whose estimated time exceeds
         30 s, judged before any work from the order and the bit length of the data
-        (``method="recursion"`` returns the unchecked float64 value). ``exact=True`` is
-        limited to order 64.
+        (``method="recursion"`` returns the unchecked float64 value). ``exact=True``
+        answers to the same 30 s budget.
 
     Examples
     --------

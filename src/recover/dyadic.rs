@@ -263,24 +263,19 @@ mod tests {
     use crate::recover::faddeev_leverrier::transfer_function;
     use num_rational::BigRational;
 
-    struct Lcg(u64);
-    impl Lcg {
-        fn next(&mut self) -> u64 {
-            self.0 = self.0.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-            self.0 >> 11
-        }
-        /// Zero, a small integer, a subnormal, or a random mantissa at a random exponent.
-        fn entry(&mut self, exponent_range: i32) -> f64 {
-            let sign = if self.next() & 1 == 1 { -1.0 } else { 1.0 };
-            match self.next() % 8 {
-                0 | 1 => 0.0,
-                2 => sign * (self.next() % 5) as f64,
-                3 => sign * 5e-324 * (1 + self.next() % 1000) as f64,
-                _ => {
-                    let mantissa = 1.0 + (self.next() % (1 << 52)) as f64 / (1u64 << 52) as f64;
-                    let e = (self.next() % (2 * exponent_range as u64 + 1)) as i32 - exponent_range;
-                    sign * mantissa * 2f64.powi(e)
-                }
+    use crate::tests::Lcg;
+
+    /// Zero, a small integer, a subnormal, or a random mantissa at a random exponent.
+    fn random_entry(rng: &mut Lcg, exponent_range: i32) -> f64 {
+        let sign = if rng.next() & 1 == 1 { -1.0 } else { 1.0 };
+        match rng.next() % 8 {
+            0 | 1 => 0.0,
+            2 => sign * (rng.next() % 5) as f64,
+            3 => sign * 5e-324 * (1 + rng.next() % 1000) as f64,
+            _ => {
+                let mantissa = 1.0 + (rng.next() % (1 << 52)) as f64 / (1u64 << 52) as f64;
+                let e = (rng.next() % (2 * exponent_range as u64 + 1)) as i32 - exponent_range;
+                sign * mantissa * 2f64.powi(e)
             }
         }
     }
@@ -306,7 +301,7 @@ mod tests {
             let (p, m) = (1 + (rng.next() % 3) as usize, 1 + (rng.next() % 3) as usize);
             let range = [4, 60, 300][case % 3];
             let mut draw = |r: usize, c: usize| {
-                Matrix::from_row_major(r, c, (0..r * c).map(|_| rng.entry(range)).collect()).unwrap()
+                Matrix::from_row_major(r, c, (0..r * c).map(|_| random_entry(&mut rng, range)).collect()).unwrap()
             };
             let ss = StateSpace::new(draw(n, n), draw(n, m), draw(p, n), draw(p, m)).unwrap();
             let exact_ss = StateSpace::new(exact(&ss.a), exact(&ss.b), exact(&ss.c), exact(&ss.d)).unwrap();

@@ -88,17 +88,19 @@ impl Field {
         if a >= b { a - b } else { a + self.p - b }
     }
 
-    fn to_mont(&self, x: u64) -> u64 {
+    /// Into Montgomery form: `x·2^64 mod p`.
+    fn enter(&self, x: u64) -> u64 {
         self.mul(x % self.p, self.r2)
     }
 
-    fn from_mont(&self, x: u64) -> u64 {
+    /// Out of Montgomery form.
+    fn leave(&self, x: u64) -> u64 {
         self.reduce(x as u128)
     }
 
     /// Inverse of a nonzero element (both in Montgomery form), by the extended Euclidean algorithm.
     fn inv(&self, x: u64) -> u64 {
-        let (mut r0, mut r1) = (self.p as i128, self.from_mont(x) as i128);
+        let (mut r0, mut r1) = (self.p as i128, self.leave(x) as i128);
         let (mut t0, mut t1) = (0i128, 1i128);
         while r1 != 0 {
             let q = r0 / r1;
@@ -106,7 +108,7 @@ impl Field {
             (t0, t1) = (t1, t0 - q * t1);
         }
         debug_assert_eq!(r0, 1, "p is prime and x nonzero");
-        self.to_mont(t0.rem_euclid(self.p as i128) as u64)
+        self.enter(t0.rem_euclid(self.p as i128) as u64)
     }
 
     /// A big integer given by its sign and base-2^64 digits (least significant first), reduced.
@@ -114,7 +116,7 @@ impl Field {
         let mut acc = 0u64;
         for &d in digits.iter().rev() {
             // acc·2^64 + d: multiplying by r2 in Montgomery form multiplies by 2^64.
-            acc = self.add(self.mul(acc, self.r2), self.to_mont(d));
+            acc = self.add(self.mul(acc, self.r2), self.enter(d));
         }
         if negative { self.sub(0, acc) } else { acc }
     }
@@ -149,7 +151,7 @@ fn is_prime(n: u64) -> bool {
         return false;
     }
     for &q in &BASES {
-        if n % q == 0 {
+        if n.is_multiple_of(q) {
             return n == q;
         }
     }
@@ -254,7 +256,7 @@ fn characteristic_polynomial_mod(h: &mut [u64], n: usize, f: &Field) -> Vec<u64>
         }
     }
     // Recurrence over the leading principal submatrices; polys[k] ascending, degree k, monic.
-    let one = f.to_mont(1);
+    let one = f.enter(1);
     let mut polys: Vec<Vec<u64>> = Vec::with_capacity(n + 1);
     polys.push(vec![one]);
     for k in 1..=n {
@@ -280,7 +282,7 @@ fn characteristic_polynomial_mod(h: &mut [u64], n: usize, f: &Field) -> Vec<u64>
         }
         polys.push(next);
     }
-    polys[n].iter().rev().map(|&v| f.from_mont(v)).collect()
+    polys[n].iter().rev().map(|&v| f.leave(v)).collect()
 }
 
 /// Garner's mixed-radix reconstruction of many values from their residues, each value
@@ -293,8 +295,8 @@ fn reconstruct(primes: &[u64], residues: &[Vec<u64>]) -> Vec<BigInt> {
     let mut digits = vec![Vec::with_capacity(primes.len()); count];
     for (j, f) in fields.iter().enumerate() {
         // p_i mod p_j in Montgomery form, so that a plain value times it stays plain.
-        let radix: Vec<u64> = primes[..j].iter().map(|&p| f.to_mont(p)).collect();
-        let prefix = radix.iter().fold(f.to_mont(1), |acc, &r| f.mul(acc, r));
+        let radix: Vec<u64> = primes[..j].iter().map(|&p| f.enter(p)).collect();
+        let prefix = radix.iter().fold(f.enter(1), |acc, &r| f.mul(acc, r));
         // (p_0 ⋯ p_{j−1})⁻¹, Montgomery form; multiplying a plain value by it gives a plain result.
         let inverse = f.inv(prefix);
         for (v, d) in digits.iter_mut().enumerate() {
@@ -364,26 +366,21 @@ mod tests {
     use super::*;
     use crate::recover::faddeev_leverrier::faddeev_leverrier;
 
-    struct Lcg(u64);
-    impl Lcg {
-        fn next(&mut self) -> u64 {
-            self.0 = self.0.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-            self.0 >> 11
+    use crate::tests::Lcg;
+
+    /// A signed integer of up to `bits` bits.
+    fn random_int(rng: &mut Lcg, bits: u32) -> BigInt {
+        let mut x = BigInt::zero();
+        for _ in 0..bits.div_ceil(50) {
+            x = (x << 50) + BigInt::from(rng.next() >> 3);
         }
-        /// A signed integer of up to `bits` bits.
-        fn int(&mut self, bits: u32) -> BigInt {
-            let mut x = BigInt::zero();
-            for _ in 0..bits.div_ceil(50) {
-                x = (x << 50) + BigInt::from(self.next() >> 3);
-            }
-            x >>= (bits.div_ceil(50) * 50 - bits) as usize;
-            if self.next() & 1 == 1 { -x } else { x }
-        }
+        x >>= (bits.div_ceil(50) * 50 - bits) as usize;
+        if rng.next() & 1 == 1 { -x } else { x }
     }
 
     fn random_matrix(rng: &mut Lcg, n: usize, bits: u32, zero_every: u64) -> Matrix<BigInt> {
         let data = (0..n * n)
-            .map(|_| if zero_every > 0 && rng.next() % zero_every == 0 { BigInt::zero() } else { rng.int(bits) })
+            .map(|_| if zero_every > 0 && rng.next().is_multiple_of(zero_every) { BigInt::zero() } else { random_int(rng, bits) })
             .collect();
         Matrix::from_row_major(n, n, data).unwrap()
     }
@@ -397,9 +394,9 @@ mod tests {
             for _ in 0..1000 {
                 let (x, y) = (rng.next() % p, (rng.next() << 9) % p);
                 let expect = mul_mod(x, y, p);
-                assert_eq!(f.from_mont(f.mul(f.to_mont(x), f.to_mont(y))), expect);
+                assert_eq!(f.leave(f.mul(f.enter(x), f.enter(y))), expect);
                 if x != 0 {
-                    assert_eq!(f.from_mont(f.mul(f.inv(f.to_mont(x)), f.to_mont(x))), 1);
+                    assert_eq!(f.leave(f.mul(f.inv(f.enter(x)), f.enter(x))), 1);
                 }
             }
         }
@@ -434,7 +431,7 @@ mod tests {
                 let f = Field::new(p);
                 values
                     .iter()
-                    .map(|v| f.from_mont(f.reduce_digits(v.sign() == Sign::Minus, &v.magnitude().to_u64_digits())))
+                    .map(|v| f.leave(f.reduce_digits(v.sign() == Sign::Minus, &v.magnitude().to_u64_digits())))
                     .collect()
             })
             .collect();

@@ -236,7 +236,7 @@ pub fn transfer_function_rational(ss: &StateSpace<BigRational>) -> Result<(Vec<B
     let b = clear_denominators("b", &ss.b, n, budget)?;
     let c = clear_denominators("c", &ss.c, n, budget)?;
     let d = clear_denominators("d", &ss.d, n, budget)?;
-    let (la, lb, lc, ld) = (&a.denominator, &b.denominator, &c.denominator, &d.denominator);
+    let (la, lb, lc) = (&a.denominator, &b.denominator, &c.denominator);
     let lbc = lb * lc;
     let perturbed_bits = (max_bits(&a.m) + lbc.bits()).max(la.bits() + max_bits(&b.m) + max_bits(&c.m)) + 1;
     // Few states with long entries favour the recursion (n⁴ big multiplications), more
