@@ -8,11 +8,14 @@ of the run and printed as a table. The first tenth is warm-up (allocator pools, 
 the check fails (exit status 1) when RSS grows by more than ``--threshold-mb`` (default
 20 MB) from the end of the warm-up to the end of the run. ``--with-errors`` makes every
 tenth call a failing one (NaN in the data), so that the error path (ModelError raised from
-the core) is checked for leaks too.
+the core) is checked for leaks too. ``--exact`` makes every ``transfer_function`` call take
+the exact route (``method="exact"``: multi-modular characteristic polynomials, the prime
+cache, the reconstruction), so that path is checked too.
 
     python scripts/memory_check.py                 # 10**6 calls, under a minute
     python scripts/memory_check.py --calls 100000  # a quick run
     python scripts/memory_check.py --with-errors
+    python scripts/memory_check.py --exact
 """
 
 import argparse
@@ -48,7 +51,10 @@ def main(argv=None):
                         help="allowed RSS growth after the warm-up tenth, in MB (default 20)")
     parser.add_argument("--with-errors", action="store_true",
                         help="make every tenth call fail with ModelError (NaN data)")
+    parser.add_argument("--exact", action="store_true",
+                        help="transfer_function with method='exact' (the exact route) instead of the default")
     args = parser.parse_args(argv)
+    method = "exact" if args.exact else "auto"
     calls = max(10, args.calls)
     step = calls // 10
 
@@ -82,7 +88,7 @@ def main(argv=None):
             r = sw.realize(nums[j], dens[j], FORMS[i % len(FORMS)])
             checksum += r.a[3, 3]
         else:
-            num, den = sw.transfer_function(*models[j])
+            num, den = sw.transfer_function(*models[j], method=method)
             checksum += den[-1]
         if i % step == 0:
             rows.append((i, rss_mb(), time.perf_counter() - start))

@@ -204,6 +204,9 @@ pub fn coefficient_bits(m: &Matrix<BigInt>) -> u64 {
     rows.min(cols) + n as u64 + 1
 }
 
+/// Modular multiplications (roughly) below which the primes run on the calling thread.
+const PARALLEL_WORK: usize = 200_000;
+
 /// Each prime carries a little more than 61 bits of the product.
 const BITS_PER_PRIME: u64 = 61;
 
@@ -342,21 +345,25 @@ pub fn characteristic_polynomials(ms: &[&Matrix<BigInt>]) -> Vec<Vec<BigInt>> {
         .map(|m| m.as_slice().iter().map(|x| (x.sign() == Sign::Minus, x.magnitude().to_u64_digits())).collect())
         .collect();
     // residues[j]: every coefficient of every matrix modulo prime j, matrix after matrix.
-    let residues: Vec<Vec<u64>> = primes
-        .par_iter()
-        .map(|&p| {
-            let f = Field::new(p);
-            let mut out = Vec::with_capacity(ms.len() * (n + 1));
-            let mut h = vec![0u64; n * n];
-            for matrix in &entries {
-                for (slot, (negative, digits)) in h.iter_mut().zip(matrix) {
-                    *slot = f.reduce_digits(*negative, digits);
-                }
-                out.extend(characteristic_polynomial_mod(&mut h, n, &f));
+    let per_prime = |&p: &u64| -> Vec<u64> {
+        let f = Field::new(p);
+        let mut out = Vec::with_capacity(ms.len() * (n + 1));
+        let mut h = vec![0u64; n * n];
+        for matrix in &entries {
+            for (slot, (negative, digits)) in h.iter_mut().zip(matrix) {
+                *slot = f.reduce_digits(*negative, digits);
             }
-            out
-        })
-        .collect();
+            out.extend(characteristic_polynomial_mod(&mut h, n, &f));
+        }
+        out
+    };
+    // Spreading a few microseconds of work over threads costs more than it saves.
+    let work = primes.len() * ms.len() * (n * n * n).max(1);
+    let residues: Vec<Vec<u64>> = if work < PARALLEL_WORK {
+        primes.iter().map(per_prime).collect()
+    } else {
+        primes.par_iter().map(per_prime).collect()
+    };
     let values = reconstruct(&primes, &residues);
     values.chunks(n + 1).map(|c| c.to_vec()).collect()
 }
