@@ -218,14 +218,17 @@ fn primes_needed(bits: u64) -> usize {
 /// matrices whose coefficients need `bits` bits and whose entries have at most `entry_bits`
 /// bits. Calibrated on this project's build machine class (one core; the primes run in
 /// parallel, so this is an upper estimate on more cores): 3 ns per modular
-/// multiplication in the reduction, 4 ns per step of the reconstruction.
+/// multiplication, three of them per 64-bit word of an entry brought into a prime's
+/// field (two multiplications and a division), and 5 ns per step of the reconstruction
+/// (Garner's digits, then the big integer built from them).
 pub fn estimated_seconds(n: usize, bits: u64, entry_bits: u64, count: usize) -> f64 {
     let primes = primes_needed(bits) as f64;
     let nf = n as f64;
     let count = count as f64;
-    let reduction = primes * count * (10.0 / 3.0 * nf.powi(3) + 2.0 * nf * nf * (entry_bits as f64 / 64.0).ceil());
+    let words = (entry_bits as f64 / 64.0).ceil();
+    let reduction = primes * count * (10.0 / 3.0 * nf.powi(3) + 3.0 * nf * nf * words);
     let reconstruction = count * (nf + 1.0) * primes * primes * 0.5;
-    reduction * 3.0e-9 + reconstruction * 4.0e-9
+    reduction * 3.0e-9 + reconstruction * 5.0e-9
 }
 
 /// Characteristic polynomial of an n×n matrix over Z/p (entries in Montgomery form, row
