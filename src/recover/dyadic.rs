@@ -10,11 +10,11 @@
 //! `M · 2^e` with M an integer matrix (e the smallest exponent of its nonzero entries), and
 //! homogeneity, `c_k(M·2^e) = c_k(M)·2^(ek)`, `N_k(M·2^e) = N_k(M)·2^(ek)`, puts the scale
 //! back. The characteristic polynomial of M is computed exactly by the multi-modular
-//! Hessenberg method ([`super::modular`]); each transfer-matrix numerator entry follows from
-//! two such polynomials by the matrix determinant lemma,
-//! `c_i adj(sI − A) b_j = det(sI − A + b_j c_i) − det(sI − A)`. The adjugate sequence itself
-//! needs the Faddeev–LeVerrier recursion on M in big integers (all divisions exact). Each
-//! result is one integer times a power of two, rounded once.
+//! Hessenberg method ([`super::modular`]), and with it the numerator terms
+//! `C N_k(M) B = Σ_{l ≤ k} c_l C M^(k−l) B` from the Markov parameters, modulo the same
+//! primes. The adjugate sequence itself needs the Faddeev–LeVerrier recursion on M in big
+//! integers (all divisions exact). Each result is one integer times a power of two,
+//! rounded once.
 //!
 //! # Numerical aspects
 //! No rounding error at all before the final rounding, whatever the eigenvalue spread.
@@ -26,10 +26,6 @@
 //! ([`super::rational::EXACT_TIME_BUDGET_SECONDS`]) is refused with `TooLarge` before any
 //! work. Results in the subnormal range may be rounded twice (to 53 bits, then to the
 //! subnormal grid).
-//!
-//! # References
-//! The matrix determinant lemma: D. A. Harville, *Matrix Algebra From a Statistician's
-//! Perspective*, Springer 1997, §18.1 (from memory).
 
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
@@ -186,71 +182,38 @@ pub fn faddeev_leverrier_dyadic(a: &Matrix<f64>, with_adjugates: bool) -> Result
 
 /// Correctly rounded transfer matrix numerator (p, m, n+1) and denominator of `ss`.
 ///
-/// By the matrix determinant lemma, `det(sI − A + b_j c_i) = det(sI − A) + c_i adj(sI − A) b_j`
-/// for column j of B and row i of C, so each numerator entry is the difference of two exact
-/// characteristic polynomials (plus `d_ij det(sI − A)`), all computed by [`modular`] on
-/// integer matrices over a common power of two, combined exactly and rounded once.
+/// The exact coefficients and terms `C N_k(M_A) B` come from [`modular::transfer_terms`] on
+/// the integer matrices; each numerator coefficient `C N_k B + c_{k+1} D` is assembled over
+/// a common power of two and rounded once.
 pub fn transfer_function_dyadic(ss: &StateSpace<f64>) -> Result<(Vec<f64>, Vec<f64>)> {
     let a = DyadicMatrix::from_f64(&ss.a);
     let b = DyadicMatrix::from_f64(&ss.b);
     let c = DyadicMatrix::from_f64(&ss.c);
     let d = DyadicMatrix::from_f64(&ss.d);
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
-    // A − b_j c_i = 2^e (M_A 2^(a−e) − M_b M_c 2^(b+c−e)), an integer matrix times 2^e.
-    let e = a.shift.min(b.shift + c.shift);
-    let (shift_a, shift_bc) = ((a.shift - e) as usize, (b.shift + c.shift - e) as usize);
-    // The budget, on a bound valid for every perturbed matrix: entries below
-    // 2^(max(bits A + shift_a, bits b + bits c + shift_bc) + 1).
-    let a_bits = max_entry_bits(&a.m);
-    let perturbed_bits = (a_bits + shift_a as u64).max(max_entry_bits(&b.m) + max_entry_bits(&c.m) + shift_bc as u64) + 1;
-    let nu = n as u64;
-    let half_log_n = (u64::BITS - nu.saturating_sub(1).leading_zeros()).div_ceil(2) as u64;
-    let bound_bits = nu * (perturbed_bits + half_log_n) + nu + 1;
-    let seconds = modular::estimated_seconds(n, modular::coefficient_bits(&a.m), a_bits, 1)
-        + modular::estimated_seconds(n, bound_bits, perturbed_bits, p * m);
-    check_budget(n, seconds, perturbed_bits)?;
+    let bits = modular::coefficient_bits(&a.m).max(modular::numerator_term_bits(&a.m, &b.m, &c.m));
+    let entry_bits = max_entry_bits(&a.m).max(max_entry_bits(&b.m)).max(max_entry_bits(&c.m));
+    check_budget(n, modular::estimated_seconds_transfer(n, bits, entry_bits, p, m), entry_bits)?;
 
-    let coeffs = modular::characteristic_polynomial(&a.m);
+    let (coeffs, terms) = modular::transfer_terms(&a.m, &b.m, &c.m);
     let den = coeffs
         .iter()
         .enumerate()
         .map(|(k, v)| round_or_overflow(v, a.shift * k as i64, "denominator"))
         .collect::<Result<Vec<f64>>>()?;
-    // d − 1 = (M_d 2^(δ−δ') − 2^(−δ')) 2^δ' with δ' = min(δ, 0), an integer times 2^δ'.
-    let delta_low = d.shift.min(0);
     let mut num = vec![0.0; p * m * (n + 1)];
     for i in 0..p {
         for j in 0..m {
-            let base = (i * m + j) * (n + 1);
-            num[base] = round_or_overflow(d.m.get(i, j), d.shift, "numerator")?;
-            let column_zero = (0..n).all(|r| b.m.get(r, j).is_zero());
-            let row_zero = (0..n).all(|s| c.m.get(i, s).is_zero());
-            let perturbed = if column_zero || row_zero {
-                None // c_i adj(sI − A) b_j = 0
-            } else {
-                let data = (0..n * n)
-                    .map(|k| {
-                        let (r, s) = (k / n, k % n);
-                        (a.m.get(r, s) << shift_a) - ((b.m.get(r, j) * c.m.get(i, s)) << shift_bc)
-                    })
-                    .collect();
-                Some(modular::characteristic_polynomial(&Matrix::from_row_major(n, n, data).expect("n x n")))
-            };
-            let d_minus_one = (d.m.get(i, j) << (d.shift - delta_low) as usize) - (BigInt::from(1u8) << (-delta_low) as usize);
-            for k in 1..=n {
-                let ki = k as i64;
-                let exact = match &perturbed {
-                    // c_k(A − b c) 2^(ke) + (d − 1) c_k(A) 2^(k·a + δ')
-                    Some(cp) => {
-                        let (s1, s2) = (e * ki, a.shift * ki + delta_low);
-                        let low = s1.min(s2);
-                        let value = (&cp[k] << (s1 - low) as usize) + ((&d_minus_one * &coeffs[k]) << (s2 - low) as usize);
-                        (value, low)
-                    }
-                    // d c_k(A): M_d c_k(M_A) 2^(δ + k·a)
-                    None => (d.m.get(i, j) * &coeffs[k], d.shift + a.shift * ki),
-                };
-                num[base + k] = round_or_overflow(&exact.0, exact.1, "numerator")?;
+            let entry = i * m + j;
+            num[entry * (n + 1)] = round_or_overflow(d.m.get(i, j), d.shift, "numerator")?;
+            for k in 0..n {
+                // C N_k B carries 2^(c + b + a·k); c_{k+1} D carries 2^(a·(k+1) + d).
+                let s1 = c.shift + b.shift + a.shift * k as i64;
+                let s2 = a.shift * (k as i64 + 1) + d.shift;
+                let low = s1.min(s2);
+                let exact = (&terms[entry * n + k] << ((s1 - low) as usize))
+                    + ((&coeffs[k + 1] * d.m.get(i, j)) << ((s2 - low) as usize));
+                num[entry * (n + 1) + k + 1] = round_or_overflow(&exact, low, "numerator")?;
             }
         }
     }
@@ -292,9 +255,9 @@ mod tests {
 
     #[test]
     fn agrees_with_the_rational_recursion_rounded() {
-        // (identity) the modular route with the determinant lemma, and the coefficients alone,
-        // equal the BigRational Faddeev–LeVerrier recursion on the same dyadic data, rounded
-        // once; overflow on one side means overflow on the other.
+        // (identity) the modular route (coefficients and Markov-parameter terms), and the
+        // coefficients alone, equal the BigRational Faddeev–LeVerrier recursion on the same
+        // dyadic data, rounded once; overflow on one side means overflow on the other.
         let mut rng = Lcg(4242);
         for case in 0..400 {
             let n = (rng.next() % 6) as usize;

@@ -231,6 +231,18 @@ pub fn estimated_seconds(n: usize, bits: u64, entry_bits: u64, count: usize) -> 
     reduction * 3.0e-9 + reconstruction * 5.0e-9
 }
 
+/// Estimated seconds of [`transfer_terms`] for p outputs and m inputs, priced like
+/// [`estimated_seconds`]: per prime the characteristic polynomial, n³·m for the Markov
+/// parameters and n²·p·m for the terms, then the reconstruction of `n + 1 + p·m·n` values.
+pub fn estimated_seconds_transfer(n: usize, bits: u64, entry_bits: u64, p: usize, m: usize) -> f64 {
+    let primes = primes_needed(bits) as f64;
+    let (nf, pf, mf) = (n as f64, p as f64, m as f64);
+    let words = (entry_bits as f64 / 64.0).ceil();
+    let per_prime = 10.0 / 3.0 * nf.powi(3) + nf.powi(3) * mf + nf * nf * pf * mf + 3.0 * (nf * nf + nf * (pf + mf)) * words;
+    let values = nf + 1.0 + pf * mf * nf;
+    primes * per_prime * 3.0e-9 + values * primes * primes * 0.5 * 5.0e-9
+}
+
 /// Characteristic polynomial of an n×n matrix over Z/p (entries in Montgomery form, row
 /// major, overwritten by its Hessenberg form); coefficients `[1, c_1, ..., c_n]`, plain.
 fn characteristic_polynomial_mod(h: &mut [u64], n: usize, f: &Field) -> Vec<u64> {
@@ -330,45 +342,107 @@ fn reconstruct(primes: &[u64], residues: &[Vec<u64>]) -> Vec<BigInt> {
         .collect()
 }
 
-/// Exact characteristic polynomial `[1, c_1, ..., c_n]` of a square integer matrix.
-pub fn characteristic_polynomial(m: &Matrix<BigInt>) -> Vec<BigInt> {
-    characteristic_polynomials(&[m]).pop().expect("one matrix")
+/// Sign and base-2^64 digits of every entry, computed once and reduced by every prime.
+fn digits_of(m: &Matrix<BigInt>) -> Vec<(bool, Vec<u64>)> {
+    m.as_slice().iter().map(|x| (x.sign() == Sign::Minus, x.magnitude().to_u64_digits())).collect()
 }
 
-/// Exact characteristic polynomials of several square integer matrices of one order,
-/// sharing the primes and the reconstruction.
-pub fn characteristic_polynomials(ms: &[&Matrix<BigInt>]) -> Vec<Vec<BigInt>> {
-    let Some(first) = ms.first() else { return Vec::new() };
-    let n = first.rows();
-    debug_assert!(ms.iter().all(|m| m.rows() == n && m.cols() == n));
-    let bits = ms.iter().map(|m| coefficient_bits(m)).max().unwrap_or(1);
+fn reduce_all(f: &Field, digits: &[(bool, Vec<u64>)]) -> Vec<u64> {
+    digits.iter().map(|(negative, d)| f.reduce_digits(*negative, d)).collect()
+}
+
+/// `per_prime` for every prime, in parallel when there is enough work to share.
+fn over_primes(primes: &[u64], work_per_prime: usize, per_prime: impl Fn(&Field) -> Vec<u64> + Sync) -> Vec<Vec<u64>> {
+    let run = |&p: &u64| per_prime(&Field::new(p));
+    // Spreading a few microseconds of work over threads costs more than it saves.
+    if primes.len().saturating_mul(work_per_prime) < PARALLEL_WORK {
+        primes.iter().map(run).collect()
+    } else {
+        primes.par_iter().map(run).collect()
+    }
+}
+
+fn max_bits(m: &Matrix<BigInt>) -> u64 {
+    m.as_slice().iter().map(|v| v.bits()).max().unwrap_or(0)
+}
+
+/// `⌈log2 n⌉` (0 for n ≤ 1).
+fn ceil_log2(n: usize) -> u64 {
+    (usize::BITS - n.saturating_sub(1).leading_zeros()) as u64
+}
+
+/// Exact characteristic polynomial `[1, c_1, ..., c_n]` of a square integer matrix.
+pub fn characteristic_polynomial(m: &Matrix<BigInt>) -> Vec<BigInt> {
+    let n = m.rows();
+    let primes = primes(primes_needed(coefficient_bits(m)));
+    let digits = digits_of(m);
+    let residues = over_primes(&primes, n * n * n, |f| {
+        let mut h = reduce_all(f, &digits);
+        characteristic_polynomial_mod(&mut h, n, f)
+    });
+    reconstruct(&primes, &residues)
+}
+
+/// Bits of a bound on `|c_i N_k b_j|` over every output i, input j and k, for the
+/// adjugate sequence `N_k` of M: each entry of `N_k` is a signed sum of fewer than 2^n
+/// minors of M, so the bound of [`coefficient_bits`] holds for it, and the products with
+/// the rows of C and columns of B add their bits and `2⌈log2 n⌉` for the n² terms.
+pub fn numerator_term_bits(m: &Matrix<BigInt>, b: &Matrix<BigInt>, c: &Matrix<BigInt>) -> u64 {
+    coefficient_bits(m) + max_bits(b) + max_bits(c) + 2 * ceil_log2(m.rows())
+}
+
+/// Exact `[1, c_1, ..., c_n]` and the terms `c_i N_k b_j` of `C adj(sI − M) B`, with `M`
+/// square (n×n), B n×m and C p×n integer matrices; the terms are laid out
+/// `terms[(i·m + j)·n + k]`, k = 0..n−1 (the coefficient of `s^(n−1−k)`).
+///
+/// Per prime, besides the characteristic polynomial: the Markov parameters
+/// `h_l = C M^l B`, l < n (n matrix-vector products per input), and
+/// `c_i N_k b_j = Σ_{l ≤ k} c_l h_{k−l}`, since `N_k = Σ_{l ≤ k} c_l M^(k−l)`.
+pub fn transfer_terms(m: &Matrix<BigInt>, b: &Matrix<BigInt>, c: &Matrix<BigInt>) -> (Vec<BigInt>, Vec<BigInt>) {
+    let (n, inputs, outputs) = (m.rows(), b.cols(), c.rows());
+    let bits = coefficient_bits(m).max(numerator_term_bits(m, b, c));
     let primes = primes(primes_needed(bits));
-    let entries: Vec<Vec<(bool, Vec<u64>)>> = ms
-        .iter()
-        .map(|m| m.as_slice().iter().map(|x| (x.sign() == Sign::Minus, x.magnitude().to_u64_digits())).collect())
-        .collect();
-    // residues[j]: every coefficient of every matrix modulo prime j, matrix after matrix.
-    let per_prime = |&p: &u64| -> Vec<u64> {
-        let f = Field::new(p);
-        let mut out = Vec::with_capacity(ms.len() * (n + 1));
-        let mut h = vec![0u64; n * n];
-        for matrix in &entries {
-            for (slot, (negative, digits)) in h.iter_mut().zip(matrix) {
-                *slot = f.reduce_digits(*negative, digits);
+    let (dm, db, dc) = (digits_of(m), digits_of(b), digits_of(c));
+    let work = n * n * n * (4 + inputs) + n * n * outputs * inputs;
+    let residues = over_primes(&primes, work, |f| {
+        let mut h = reduce_all(f, &dm);
+        let (bm, cm) = (reduce_all(f, &db), reduce_all(f, &dc));
+        // markov[l·p·m + i·m + j] = (C M^l B)_ij, Montgomery form.
+        let mut markov = vec![0u64; n * outputs * inputs];
+        let mut v = bm; // M^l B, n × m
+        let mut next = vec![0u64; n * inputs];
+        for l in 0..n {
+            for i in 0..outputs {
+                for j in 0..inputs {
+                    let dot = (0..n).fold(0, |acc, r| f.add(acc, f.mul(cm[i * n + r], v[r * inputs + j])));
+                    markov[(l * outputs + i) * inputs + j] = dot;
+                }
             }
-            out.extend(characteristic_polynomial_mod(&mut h, n, &f));
+            if l + 1 < n {
+                for r in 0..n {
+                    for j in 0..inputs {
+                        next[r * inputs + j] = (0..n).fold(0, |acc, t| f.add(acc, f.mul(h[r * n + t], v[t * inputs + j])));
+                    }
+                }
+                std::mem::swap(&mut v, &mut next);
+            }
+        }
+        let coeffs = characteristic_polynomial_mod(&mut h, n, f); // plain
+        let mut out = coeffs.clone();
+        for i in 0..outputs {
+            for j in 0..inputs {
+                for k in 0..n {
+                    // plain × Montgomery = plain
+                    let term = (0..=k).fold(0, |acc, l| f.add(acc, f.mul(coeffs[l], markov[((k - l) * outputs + i) * inputs + j])));
+                    out.push(term);
+                }
+            }
         }
         out
-    };
-    // Spreading a few microseconds of work over threads costs more than it saves.
-    let work = primes.len() * ms.len() * (n * n * n).max(1);
-    let residues: Vec<Vec<u64>> = if work < PARALLEL_WORK {
-        primes.iter().map(per_prime).collect()
-    } else {
-        primes.par_iter().map(per_prime).collect()
-    };
-    let values = reconstruct(&primes, &residues);
-    values.chunks(n + 1).map(|c| c.to_vec()).collect()
+    });
+    let mut values = reconstruct(&primes, &residues);
+    let terms = values.split_off(n + 1);
+    (values, terms)
 }
 
 #[cfg(test)]
@@ -456,6 +530,30 @@ mod tests {
             let m = random_matrix(&mut rng, n, bits, zeros);
             let (expect, _) = faddeev_leverrier(&m);
             assert_eq!(characteristic_polynomial(&m), expect, "n = {n}, bits = {bits}");
+        }
+    }
+
+    #[test]
+    fn transfer_terms_agree_with_the_adjugate_sequence() {
+        // (identity) c_i N_k b_j from the integer recursion's adjugates, for random integer
+        // data with a zero column of B and long entries.
+        let mut rng = Lcg(31);
+        for &(n, p, m, bits) in &[(0, 1, 1, 8), (1, 2, 1, 8), (3, 1, 1, 4), (6, 2, 3, 70), (9, 3, 2, 300)] {
+            let a = random_matrix(&mut rng, n, bits, 4);
+            let b = Matrix::from_row_major(n, m, (0..n * m).map(|k| if k % m == m - 1 && m > 1 { BigInt::zero() } else { random_int(&mut rng, bits) }).collect()).unwrap();
+            let c = Matrix::from_row_major(p, n, (0..p * n).map(|_| random_int(&mut rng, 40)).collect()).unwrap();
+            let (expect_coeffs, adjugates) = faddeev_leverrier(&a);
+            let (coeffs, terms) = transfer_terms(&a, &b, &c);
+            assert_eq!(coeffs, expect_coeffs);
+            assert_eq!(terms.len(), p * m * n);
+            for (k, nk) in adjugates.iter().enumerate() {
+                let cnb = c.matmul(&nk.matmul(&b));
+                for i in 0..p {
+                    for j in 0..m {
+                        assert_eq!(&terms[(i * m + j) * n + k], cnb.get(i, j), "n = {n}, k = {k}");
+                    }
+                }
+            }
         }
     }
 

@@ -12,8 +12,8 @@
 //! common multiple of its denominators and `M_X` an integer matrix, and homogeneity puts
 //! the scale back: `c_k(A) = c_k(M_A) / L_A^k`, `N_k(A) = N_k(M_A) / L_A^k`. The
 //! coefficients `c_k(M_A)` come from the multi-modular Hessenberg method ([`modular`]), and
-//! each transfer-matrix numerator entry from two such characteristic polynomials by the
-//! matrix determinant lemma (see [`transfer_function_rational`]). The adjugates need the
+//! the numerator terms `M_C N_k(M_A) M_B` from the Markov parameters modulo the same primes
+//! (see [`transfer_function_rational`]). The adjugates need the
 //! recursion on `M_A` in big integers (every division by k is exact there). Each result is
 //! reduced to lowest terms once, at the end.
 //!
@@ -220,110 +220,70 @@ pub fn faddeev_leverrier_rational(a: &Matrix<BigRational>, with_adjugates: bool)
 
 /// Numerator (p, m, n+1 row-major) and monic denominator of `C (sI−A)⁻¹ B + D`, exactly.
 ///
-/// By the matrix determinant lemma, `c_i adj(sI − A) b_j = det(sI − A + b_j c_i) − det(sI − A)`.
-/// Over common denominators, `A − b_j c_i = M' / (L_A L_B L_C)` with
-/// `M' = M_A L_B L_C − L_A M_B[:, j] M_C[i, :]`, so each numerator entry is
-/// `(c_k(M') L_D + (M_D − L_D) c_k(M_A) (L_B L_C)^k) / (L_A^k L_B^k L_C^k L_D)`, from two
-/// exact characteristic polynomials ([`modular`]). Refused like
-/// [`faddeev_leverrier_rational`]; B, C and D are held to the same bit budget, and the
-/// perturbed matrices' size enters the time estimate.
+/// Over common denominators, `C N_k(A) B = M_C N_k(M_A) M_B / (L_C L_A^k L_B)`: the exact
+/// coefficients `c_k(M_A)` and terms `M_C N_k(M_A) M_B` come from the multi-modular route
+/// ([`modular::transfer_terms`]) or, for a few states with very long entries, from the
+/// integer recursion, whichever the cost estimates find cheaper. Refused like
+/// [`faddeev_leverrier_rational`]; B, C and D are held to the same bit budget.
 pub fn transfer_function_rational(ss: &StateSpace<BigRational>) -> Result<(Vec<BigRational>, Vec<BigRational>)> {
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
-    let count = p * m + 1;
-    let reductions = count * (n + 1);
-    let budget = modular_bit_budget(n, count, reductions).max(bit_budget(n, n * count));
+    let reductions = (p * m + 1) * (n + 1);
+    let budget = modular_bit_budget(n, p * m + 1, reductions).max(bit_budget(n, n * (p * m + 1)));
     let a = clear_denominators("a", &ss.a, n, budget)?;
     let b = clear_denominators("b", &ss.b, n, budget)?;
     let c = clear_denominators("c", &ss.c, n, budget)?;
     let d = clear_denominators("d", &ss.d, n, budget)?;
-    let (la, lb, lc) = (&a.denominator, &b.denominator, &c.denominator);
-    let lbc = lb * lc;
-    let perturbed_bits = (max_bits(&a.m) + lbc.bits()).max(la.bits() + max_bits(&b.m) + max_bits(&c.m)) + 1;
     // Few states with long entries favour the recursion (n⁴ big multiplications), more
     // states the modular route (n³ word operations per prime): take the cheaper estimate.
-    let modular_s = modular_seconds(n, perturbed_bits, count, reductions);
-    let recursion_s = estimated_seconds(n, max_bits(&a.m), n * count);
+    let bits = modular::numerator_term_bits(&a.m, &b.m, &c.m);
+    let entry_bits = max_bits(&a.m).max(max_bits(&b.m)).max(max_bits(&c.m));
+    let words = (bits as f64 / 64.0).max(1.0);
+    let modular_s = modular::estimated_seconds_transfer(n, bits, entry_bits, p, m)
+        + reductions as f64 * words * words * 2.0e-8 / (n.max(1) as f64);
+    let recursion_s = estimated_seconds(n, entry_bits, n * (p * m + 1));
     if modular_s.min(recursion_s) > EXACT_TIME_BUDGET_SECONDS {
-        return Err(too_costly("a", n, perturbed_bits, budget));
+        return Err(too_costly("a", n, entry_bits, budget));
     }
     let cleared = [&a, &b, &c, &d];
-    Ok(if recursion_s < modular_s {
-        transfer_function_by_recursion(ss, cleared)
-    } else {
-        transfer_function_by_determinant_lemma(ss, cleared)
-    })
+    let (coeffs, terms) = if recursion_s < modular_s { terms_by_recursion(n, cleared) } else { modular::transfer_terms(&a.m, &b.m, &c.m) };
+    Ok(assemble(ss, cleared, &coeffs, &terms))
 }
 
-/// The multi-modular route: two exact characteristic polynomials per entry (see
-/// [`transfer_function_rational`]).
-fn transfer_function_by_determinant_lemma(ss: &StateSpace<BigRational>, [a, b, c, d]: [&Cleared; 4])
+/// `c_k(M_A)` and `M_C N_k(M_A) M_B` (laid out as [`modular::transfer_terms`]) by the
+/// integer recursion.
+fn terms_by_recursion(n: usize, [a, b, c, _]: [&Cleared; 4]) -> (Vec<BigInt>, Vec<BigInt>) {
+    let (p, m) = (c.m.rows(), b.m.cols());
+    let (coeffs, adjugates) = faddeev_leverrier(&a.m);
+    let mut terms = vec![BigInt::zero(); p * m * n];
+    for (k, nk) in adjugates.iter().enumerate() {
+        let cnb = c.m.matmul(&nk.matmul(&b.m));
+        for i in 0..p {
+            for j in 0..m {
+                terms[(i * m + j) * n + k] = cnb.get(i, j).clone();
+            }
+        }
+    }
+    (coeffs, terms)
+}
+
+/// The reduced fractions of the denominator and of `C N_k B + c_{k+1} D`.
+fn assemble(ss: &StateSpace<BigRational>, [a, b, c, d]: [&Cleared; 4], coeffs: &[BigInt], terms: &[BigInt])
     -> (Vec<BigRational>, Vec<BigRational>) {
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
     let (la, lb, lc, ld) = (&a.denominator, &b.denominator, &c.denominator, &d.denominator);
-    let lbc = lb * lc;
-    let coeffs = modular::characteristic_polynomial(&a.m);
-    let den: Vec<BigRational> = coeffs.iter().enumerate().map(|(k, v)| reduced(v.clone(), &[(la, k)])).collect();
-    // (L_B L_C)^k for k = 0..n
-    let mut lbc_powers = vec![BigInt::one()];
-    for k in 1..=n {
-        let next = &lbc_powers[k - 1] * &lbc;
-        lbc_powers.push(next);
-    }
-    let mut num = vec![BigRational::zero(); p * m * (n + 1)];
-    for i in 0..p {
-        for j in 0..m {
-            let base = (i * m + j) * (n + 1);
-            num[base] = ss.d.get(i, j).clone();
-            let md = d.m.get(i, j);
-            let column_zero = (0..n).all(|r| b.m.get(r, j).is_zero());
-            let row_zero = (0..n).all(|s| c.m.get(i, s).is_zero());
-            if column_zero || row_zero {
-                // c_i adj(sI − A) b_j = 0: the entry is d_ij det(sI − A).
-                for k in 1..=n {
-                    num[base + k] = reduced(&coeffs[k] * md, &[(la, k), (ld, 1)]);
-                }
-                continue;
-            }
-            let data = (0..n * n)
-                .map(|idx| {
-                    let (r, s) = (idx / n, idx % n);
-                    a.m.get(r, s) * &lbc - la * (b.m.get(r, j) * c.m.get(i, s))
-                })
-                .collect();
-            let perturbed = modular::characteristic_polynomial(&Matrix::from_row_major(n, n, data).expect("n x n"));
-            let md_minus_ld = md - ld;
-            for k in 1..=n {
-                let numer = &perturbed[k] * ld + &md_minus_ld * &coeffs[k] * &lbc_powers[k];
-                num[base + k] = reduced(numer, &[(la, k), (lb, k), (lc, k), (ld, 1)]);
-            }
-        }
-    }
-    (num, den)
-}
-
-/// The big-integer route: `C N_k B + c_{k+1} D` from the adjugate sequence of `M_A`.
-fn transfer_function_by_recursion(ss: &StateSpace<BigRational>, [a, b, c, d]: [&Cleared; 4]) -> (Vec<BigRational>, Vec<BigRational>) {
-    let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
-    let (la, lb, lc, ld) = (&a.denominator, &b.denominator, &c.denominator, &d.denominator);
-    let (coeffs, adjugates) = faddeev_leverrier(&a.m);
     let den: Vec<BigRational> = coeffs.iter().enumerate().map(|(k, v)| reduced(v.clone(), &[(la, k)])).collect();
     let mut num = vec![BigRational::zero(); p * m * (n + 1)];
-    for i in 0..p {
-        for j in 0..m {
-            num[(i * m + j) * (n + 1)] = ss.d.get(i, j).clone();
-        }
-    }
     // Over the common denominator Lc·Lb·Ld·La^(k+1):
     // C N_k B + c_{k+1} D = (M_C N_k M_B · Ld·La + c_{k+1}(M_A) · M_D · Lc·Lb) / (Lc Lb Ld La^(k+1)).
     let cnb_factor = ld * la;
     let d_factor = lc * lb;
-    for (k, nk) in adjugates.iter().enumerate() {
-        let cnb = c.m.matmul(&nk.matmul(&b.m));
-        let ck = &coeffs[k + 1] * &d_factor;
-        for i in 0..p {
-            for j in 0..m {
-                let numer = cnb.get(i, j) * &cnb_factor + &ck * d.m.get(i, j);
-                num[(i * m + j) * (n + 1) + k + 1] = reduced(numer, &[(la, k + 1), (lc, 1), (lb, 1), (ld, 1)]);
+    for i in 0..p {
+        for j in 0..m {
+            let entry = i * m + j;
+            num[entry * (n + 1)] = ss.d.get(i, j).clone();
+            for k in 0..n {
+                let numer = &terms[entry * n + k] * &cnb_factor + &coeffs[k + 1] * &d_factor * d.m.get(i, j);
+                num[entry * (n + 1) + k + 1] = reduced(numer, &[(la, k + 1), (lc, 1), (lb, 1), (ld, 1)]);
             }
         }
     }
@@ -362,9 +322,9 @@ mod tests {
     }
 
     #[test]
-    fn determinant_lemma_numerators_agree_with_the_recursion() {
+    fn both_routes_agree_with_the_rational_recursion() {
         // (identity) order 7, two outputs and three inputs, a zero column of B, a zero row
-        // of C, and a D entry equal to 1 (the d − 1 term vanishes): every entry equals the
+        // of C, and a D entry equal to 1: every entry, by either route, equals the
         // BigRational recursion's C N_k B + c_k D.
         let mut seed = 99u64;
         let mut next = move |modulus: i64| {
@@ -388,8 +348,10 @@ mod tests {
             .map(|(arg, x)| clear_denominators(arg, x, n, 10_000).unwrap())
             .collect();
         let parts = [&cleared[0], &cleared[1], &cleared[2], &cleared[3]];
-        assert_eq!(transfer_function_by_recursion(&ss, parts), (num_ref.clone(), den_ref.clone()));
-        assert_eq!(transfer_function_by_determinant_lemma(&ss, parts), (num_ref, den_ref));
+        let (coeffs, terms) = terms_by_recursion(n, parts);
+        assert_eq!(assemble(&ss, parts, &coeffs, &terms), (num_ref.clone(), den_ref.clone()));
+        let (coeffs, terms) = modular::transfer_terms(&cleared[0].m, &cleared[1].m, &cleared[2].m);
+        assert_eq!(assemble(&ss, parts, &coeffs, &terms), (num_ref, den_ref));
     }
 
     #[test]
