@@ -6,7 +6,7 @@ Run: python benchmarks/bench_exact.py   (writes benchmarks/results/exact.md)
 sympy reference: Matrix.charpoly() (its DomainMatrix characteristic polynomial over QQ) for
 the characteristic polynomial; for a SISO transfer function, det(sI - A) from charpoly and
 C adj(sI - A) B from the matrix determinant lemma, charpoly(A - B C) - charpoly(A), i.e.
-two charpoly calls, the same work statewright does.
+two charpoly calls (statewright gets the numerator from the Markov parameters instead).
 """
 
 from __future__ import annotations

@@ -2,7 +2,7 @@
 
 Every float64 is a dyadic rational, so the characteristic polynomial and transfer matrix of
 float data have exact values; statewright computes them (multi-modular Hessenberg method,
-numerators through the matrix determinant lemma) and rounds each coefficient once. The
+numerators from the Markov parameters) and rounds each coefficient once. The
 checks compare bit for bit with float(Fraction(...)) of an exact reference, which Python
 rounds to nearest (identity): the integer Faddeev-LeVerrier recursion in Python integers
 (swtest_helpers), or a product of linear factors where the structure fixes the answer.
