@@ -1,11 +1,14 @@
-//! Exact characteristic polynomial of an integer matrix by multi-modular arithmetic.
+//! Exact characteristic polynomial and transfer-matrix terms of integer data by
+//! multi-modular arithmetic.
 //!
 //! # Purpose
-//! `det(sI − M) = s^n + c_1 s^(n−1) + ... + c_n` exactly, for an integer matrix M whose
+//! `det(sI − M) = s^n + c_1 s^(n−1) + ... + c_n` exactly, and for integer B and C the terms
+//! `C N_k B` of `C adj(sI − M) B = Σ_k C N_k B s^(n−1−k)`, for an integer matrix M whose
 //! entries may carry thousands of bits (a float64 matrix with widely spread exponents,
-//! scaled to integers). It replaces the big-integer Faddeev–LeVerrier recursion where only
-//! the coefficients are needed: that recursion costs n⁴ multiplications of numbers that
-//! grow to n times the entries' length; this routine costs n³ word operations per prime.
+//! scaled to integers). It replaces the big-integer Faddeev–LeVerrier recursion where the
+//! adjugates themselves are not needed: that recursion costs n⁴ multiplications of numbers
+//! that grow to n times the entries' length; this routine costs n³ word operations per
+//! prime.
 //!
 //! # Method
 //! 1. A bound: by Hadamard's inequality every principal k×k minor of M is at most the
@@ -17,7 +20,12 @@
 //!    (Gaussian elimination with row and column swaps, exact over the field Z/p), and the
 //!    characteristic polynomial of the Hessenberg matrix H follows from the recurrence
 //!    `p_0 = 1`, `p_k(s) = (s − h_kk) p_{k−1}(s) − Σ_{i<k} h_ik (h_{i+1,i} ⋯ h_{k,k−1}) p_{i−1}(s)`.
-//!    Arithmetic is Montgomery multiplication on 64-bit words. The primes run in parallel.
+//!    For the transfer terms, before the reduction, the Markov parameters
+//!    `h_l = C M^l B` (l < n) by matrix-vector products, and then
+//!    `C N_k B = Σ_{l ≤ k} c_l h_{k−l}`, since `N_k = Σ_{l ≤ k} c_l M^(k−l)`; every entry of
+//!    `N_k` is a signed sum of fewer than 2^n minors of M, so the same bound holds for it.
+//!    Arithmetic is Montgomery multiplication on 64-bit words; the primes run in parallel
+//!    when there is enough work to share.
 //! 4. Chinese remaindering (Garner's mixed-radix form), then the symmetric residue.
 //!
 //! # Numerical aspects
