@@ -47,7 +47,7 @@ fn main() {
     for &(n, wide) in &[(10, false), (20, false), (30, false), (40, false), (64, false), (128, false), (256, false), (10, true), (20, true), (40, true)] {
         let a = spread_model(n, wide, &mut rng);
         let dy = DyadicMatrix::from_f64(&a);
-        let entry_bits = dy.m.as_slice().iter().map(|v| v.bits()).max().unwrap_or(0);
+        let entry_bits = modular::max_entry_bits(&dy.m);
         let bound = modular::coefficient_bits(&dy.m);
         let estimate = modular::estimated_seconds(n, bound, entry_bits, 1);
         let started = Instant::now();

@@ -143,10 +143,6 @@ fn check_budget(n: usize, seconds: f64, bits: u64) -> Result<()> {
     })
 }
 
-fn max_entry_bits(m: &Matrix<BigInt>) -> u64 {
-    m.as_slice().iter().map(|v| v.bits()).max().unwrap_or(0)
-}
-
 /// Correctly rounded characteristic polynomial and (optionally) adjugate sequence of `a`.
 ///
 /// The coefficients alone come from the multi-modular Hessenberg method ([`modular`]); the
@@ -155,7 +151,7 @@ pub fn faddeev_leverrier_dyadic(a: &Matrix<f64>, with_adjugates: bool) -> Result
     let dy = DyadicMatrix::from_f64(a);
     let n = a.rows();
     let e = dy.shift;
-    let entry_bits = max_entry_bits(&dy.m);
+    let entry_bits = modular::max_entry_bits(&dy.m);
     let (coeffs, adjugates) = if with_adjugates {
         check_budget(n, rational::estimated_seconds(n, entry_bits, 0), entry_bits)?;
         faddeev_leverrier(&dy.m)
@@ -193,7 +189,7 @@ pub fn transfer_function_dyadic(ss: &StateSpace<f64>) -> Result<(Vec<f64>, Vec<f
     let d = DyadicMatrix::from_f64(&ss.d);
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
     let bits = modular::coefficient_bits(&a.m).max(modular::numerator_term_bits(&a.m, &b.m, &c.m));
-    let entry_bits = max_entry_bits(&a.m).max(max_entry_bits(&b.m)).max(max_entry_bits(&c.m));
+    let entry_bits = [&a.m, &b.m, &c.m].iter().map(|x| modular::max_entry_bits(x)).max().unwrap_or(0);
     check_budget(n, modular::estimated_seconds_transfer(n, bits, entry_bits, p, m), entry_bits)?;
 
     let (coeffs, terms) = modular::transfer_terms(&a.m, &b.m, &c.m);

@@ -198,18 +198,26 @@ fn primes(count: usize) -> Vec<u64> {
 /// Bits of a bound B with `|c_k| < 2^B` for every coefficient of `det(sI − M)`.
 pub fn coefficient_bits(m: &Matrix<BigInt>) -> u64 {
     let n = m.rows();
-    if n == 0 {
-        return 1;
-    }
-    // A row of entries below 2^b has 2-norm below sqrt(n)·2^b; half of log2(n), rounded up.
-    let half_log_n = (usize::BITS - (n - 1).leading_zeros()).div_ceil(2) as u64;
+    // A row of entries below 2^b has 2-norm below sqrt(n)·2^b: ⌈log2(n)/2⌉ bits more.
+    let half_log_n = ceil_log2(n).div_ceil(2);
     let line_sum = |bits: &mut dyn Iterator<Item = u64>| -> u64 {
         bits.filter(|&b| b > 0).map(|b| b + half_log_n).sum()
     };
     let rows = line_sum(&mut (0..n).map(|i| (0..n).map(|j| m.get(i, j).bits()).max().unwrap_or(0)));
     let cols = line_sum(&mut (0..n).map(|j| (0..n).map(|i| m.get(i, j).bits()).max().unwrap_or(0)));
-    // C(n, k) < 2^n; one more bit for the sign of the symmetric residue.
-    rows.min(cols) + n as u64 + 1
+    with_sign_and_subsets(n, rows.min(cols))
+}
+
+/// The same bound for an order-n matrix whose every row has entries of up to `entry_bits`
+/// bits, without forming it (what a cost estimate needs before the work).
+pub fn coefficient_bits_for(n: usize, entry_bits: u64) -> u64 {
+    with_sign_and_subsets(n, n as u64 * (entry_bits + ceil_log2(n).div_ceil(2)))
+}
+
+/// The row-norm product's bits plus n for the `C(n, k) < 2^n` minors of each coefficient
+/// and one for the sign of the symmetric residue.
+fn with_sign_and_subsets(n: usize, norm_product_bits: u64) -> u64 {
+    norm_product_bits + n as u64 + 1
 }
 
 /// Modular multiplications (roughly) below which the primes run on the calling thread.
@@ -230,13 +238,8 @@ fn primes_needed(bits: u64) -> usize {
 /// field (two multiplications and a division), and 5 ns per step of the reconstruction
 /// (Garner's digits, then the big integer built from them).
 pub fn estimated_seconds(n: usize, bits: u64, entry_bits: u64, count: usize) -> f64 {
-    let primes = primes_needed(bits) as f64;
-    let nf = n as f64;
-    let count = count as f64;
-    let words = (entry_bits as f64 / 64.0).ceil();
-    let reduction = primes * count * (10.0 / 3.0 * nf.powi(3) + 3.0 * nf * nf * words);
-    let reconstruction = count * (nf + 1.0) * primes * primes * 0.5;
-    reduction * 3.0e-9 + reconstruction * 5.0e-9
+    // A transfer function with no inputs or outputs is the characteristic polynomial alone.
+    count as f64 * estimated_seconds_transfer(n, bits, entry_bits, 0, 0)
 }
 
 /// Estimated seconds of [`transfer_terms`] for p outputs and m inputs, priced like
@@ -370,7 +373,8 @@ fn over_primes(primes: &[u64], work_per_prime: usize, per_prime: impl Fn(&Field)
     }
 }
 
-fn max_bits(m: &Matrix<BigInt>) -> u64 {
+/// Bit length of the largest entry (0 for an empty or zero matrix).
+pub fn max_entry_bits(m: &Matrix<BigInt>) -> u64 {
     m.as_slice().iter().map(|v| v.bits()).max().unwrap_or(0)
 }
 
@@ -396,7 +400,7 @@ pub fn characteristic_polynomial(m: &Matrix<BigInt>) -> Vec<BigInt> {
 /// minors of M, so the bound of [`coefficient_bits`] holds for it, and the products with
 /// the rows of C and columns of B add their bits and `2⌈log2 n⌉` for the n² terms.
 pub fn numerator_term_bits(m: &Matrix<BigInt>, b: &Matrix<BigInt>, c: &Matrix<BigInt>) -> u64 {
-    coefficient_bits(m) + max_bits(b) + max_bits(c) + 2 * ceil_log2(m.rows())
+    coefficient_bits(m) + max_entry_bits(b) + max_entry_bits(c) + 2 * ceil_log2(m.rows())
 }
 
 /// Exact `[1, c_1, ..., c_n]` and the terms `c_i N_k b_j` of `C adj(sI − M) B`, with `M`

@@ -70,14 +70,20 @@ pub fn estimated_seconds(n: usize, bits: u64, reductions: usize) -> f64 {
 /// Longest time the exact recursion may be expected to take before it is refused.
 pub const EXACT_TIME_BUDGET_SECONDS: f64 = 30.0;
 
-/// The largest integer size (bits) within the budget at order n.
-fn bit_budget(n: usize, reductions: usize) -> u64 {
+/// The largest integer size (bits, at least 64) whose estimated `seconds` stay within the
+/// budget; `seconds` grows with the size.
+fn largest_bits_within_budget(seconds: impl Fn(u64) -> f64) -> u64 {
     let (mut low, mut high) = (64u64, 1u64 << 40);
     while low + 1 < high {
         let mid = low + (high - low) / 2;
-        if estimated_seconds(n, mid, reductions) <= EXACT_TIME_BUDGET_SECONDS { low = mid } else { high = mid }
+        if seconds(mid) <= EXACT_TIME_BUDGET_SECONDS { low = mid } else { high = mid }
     }
     low
+}
+
+/// The largest integer size (bits) within the budget at order n.
+fn bit_budget(n: usize, reductions: usize) -> u64 {
+    largest_bits_within_budget(|bits| estimated_seconds(n, bits, reductions))
 }
 
 fn too_costly(arg: &'static str, n: usize, bits: u64, budget: u64) -> ModelError {
@@ -148,35 +154,24 @@ fn reduced(numer: BigInt, bases: &[(&BigInt, usize)]) -> BigRational {
     BigRational::new_raw(rest, denom)
 }
 
-/// Bits of the Hadamard bound ([`modular::coefficient_bits`]) for an order-n matrix whose
-/// entries have at most `bits` bits, without forming it.
-fn bound_for(n: usize, bits: u64) -> u64 {
-    let nu = n as u64;
-    let half_log_n = (u64::BITS - nu.saturating_sub(1).leading_zeros()).div_ceil(2) as u64;
-    nu * (bits + half_log_n) + nu + 1
+/// Seconds to bring `reductions` modular-route results of up to `bound_bits` bits to
+/// lowest terms: about a GCD the size of each denominator, costed as in
+/// [`estimated_seconds`], the denominators averaging 1/n of the bound.
+fn reduction_seconds(n: usize, bound_bits: u64, reductions: usize) -> f64 {
+    let words = (bound_bits as f64 / 64.0).max(1.0);
+    reductions as f64 * words * words * 2.0e-8 / (n.max(1) as f64)
 }
 
 /// Estimated seconds of the modular route: `count` characteristic polynomials of order n on
-/// entries of `bits` bits, and `reductions` results brought to lowest terms (each about a
-/// GCD the size of its denominator, costed as in [`estimated_seconds`]).
+/// entries of `bits` bits, and `reductions` results brought to lowest terms.
 fn modular_seconds(n: usize, bits: u64, count: usize, reductions: usize) -> f64 {
-    let bound = bound_for(n, bits);
-    let words = (bound as f64 / 64.0).max(1.0);
-    modular::estimated_seconds(n, bound, bits, count) + reductions as f64 * words * words * 2.0e-8 / (n.max(1) as f64)
+    let bound = modular::coefficient_bits_for(n, bits);
+    modular::estimated_seconds(n, bound, bits, count) + reduction_seconds(n, bound, reductions)
 }
 
 /// The largest integer size (bits) within the budget for the modular route at order n.
 fn modular_bit_budget(n: usize, count: usize, reductions: usize) -> u64 {
-    let (mut low, mut high) = (64u64, 1u64 << 40);
-    while low + 1 < high {
-        let mid = low + (high - low) / 2;
-        if modular_seconds(n, mid, count, reductions) <= EXACT_TIME_BUDGET_SECONDS { low = mid } else { high = mid }
-    }
-    low
-}
-
-fn max_bits(m: &Matrix<BigInt>) -> u64 {
-    m.as_slice().iter().map(|v| v.bits()).max().unwrap_or(0)
+    largest_bits_within_budget(|bits| modular_seconds(n, bits, count, reductions))
 }
 
 /// Coefficients `[1, c_1, ..., c_n]` and adjugates `N_0 .. N_{n−1}` of a rational matrix.
@@ -188,11 +183,12 @@ pub fn faddeev_leverrier_rational(a: &Matrix<BigRational>, with_adjugates: bool)
     -> Result<(Vec<BigRational>, Vec<Matrix<BigRational>>)> {
     let n = a.rows();
     if !with_adjugates {
-        let cleared = clear_denominators("a", a, n, modular_bit_budget(n, 1, n).max(bit_budget(n, n)))?;
-        let bits = max_bits(&cleared.m);
+        let budget = modular_bit_budget(n, 1, n).max(bit_budget(n, n));
+        let cleared = clear_denominators("a", a, n, budget)?;
+        let bits = modular::max_entry_bits(&cleared.m);
         let (modular_s, recursion_s) = (modular_seconds(n, bits, 1, n), estimated_seconds(n, bits, n));
         if modular_s.min(recursion_s) > EXACT_TIME_BUDGET_SECONDS {
-            return Err(too_costly("a", n, bits, modular_bit_budget(n, 1, n).max(bit_budget(n, n))));
+            return Err(too_costly("a", n, bits, budget));
         }
         let coeffs = if modular_s <= recursion_s {
             modular::characteristic_polynomial(&cleared.m)
@@ -236,10 +232,8 @@ pub fn transfer_function_rational(ss: &StateSpace<BigRational>) -> Result<(Vec<B
     // Few states with long entries favour the recursion (n⁴ big multiplications), more
     // states the modular route (n³ word operations per prime): take the cheaper estimate.
     let bits = modular::numerator_term_bits(&a.m, &b.m, &c.m);
-    let entry_bits = max_bits(&a.m).max(max_bits(&b.m)).max(max_bits(&c.m));
-    let words = (bits as f64 / 64.0).max(1.0);
-    let modular_s = modular::estimated_seconds_transfer(n, bits, entry_bits, p, m)
-        + reductions as f64 * words * words * 2.0e-8 / (n.max(1) as f64);
+    let entry_bits = [&a.m, &b.m, &c.m].iter().map(|x| modular::max_entry_bits(x)).max().unwrap_or(0);
+    let modular_s = modular::estimated_seconds_transfer(n, bits, entry_bits, p, m) + reduction_seconds(n, bits, reductions);
     let recursion_s = estimated_seconds(n, entry_bits, n * (p * m + 1));
     if modular_s.min(recursion_s) > EXACT_TIME_BUDGET_SECONDS {
         return Err(too_costly("a", n, entry_bits, budget));
