@@ -83,11 +83,10 @@ def _hidden_triangular(n, seed):
 
 
 def _product_of_factors(roots):
-    """Coefficients of prod (s - r), highest power first, exactly."""
+    """Coefficients of prod (s - r), highest power first, exactly (roots: Fractions)."""
     poly = [Fraction(1)]
     for r in roots:
-        fr = Fraction(float(r))
-        poly = [x - fr * y for x, y in zip(poly + [Fraction(0)], [Fraction(0)] + poly)]
+        poly = [x - r * y for x, y in zip(poly + [Fraction(0)], [Fraction(0)] + poly)]
     return poly
 
 
@@ -101,8 +100,9 @@ def test_fallback_beyond_order_64(n):
     c = pm[:, [n - 1]].T
     num, den, acc = sw.transfer_function(a, b, c, np.zeros((1, 1)), return_accuracy=True)
     assert acc["method"] == EXACT  # the double-double bound cannot certify this one
-    np.testing.assert_array_equal(den, _rounded(_product_of_factors(diag)))
-    np.testing.assert_array_equal(num[0, 0], _rounded([Fraction(0)] + _product_of_factors(diag[:-1])))
+    roots = [Fraction(float(r)) for r in diag]
+    np.testing.assert_array_equal(den, _rounded(_product_of_factors(roots)))
+    np.testing.assert_array_equal(num[0, 0], _rounded([Fraction(0)] + _product_of_factors(roots[:-1])))
     np.testing.assert_array_equal(sw.characteristic_polynomial(a), den)
 
 
@@ -141,18 +141,11 @@ def test_exact_rational_mode_beyond_order_64():
     c = b.T.copy()
     d = np.array([[Fraction(1, 3)]], dtype=object)
     num, den = sw.transfer_function(a, b, c, d, exact=True)
-    char = _product_of_factors_exact(diag)
+    char = _product_of_factors(diag)
     assert list(den) == char
     assert list(sw.characteristic_polynomial(a, exact=True)) == char
-    cofactor = [Fraction(0)] + _product_of_factors_exact(diag[:-1])
+    cofactor = [Fraction(0)] + _product_of_factors(diag[:-1])
     assert list(num[0, 0]) == [x + Fraction(1, 3) * y for x, y in zip(cofactor, char)]
-
-
-def _product_of_factors_exact(roots):
-    poly = [Fraction(1)]
-    for r in roots:
-        poly = [x - r * y for x, y in zip(poly + [Fraction(0)], [Fraction(0)] + poly)]
-    return poly
 
 
 def test_exact_adjugates_keep_the_order_64_limit():

@@ -805,32 +805,30 @@ def check_staircase(s, n, m, p=None):
     assert math.isfinite(s.tol) and s.tol >= 0
 
 
-@CI
-@given(model=float_model(), tol=bad_tol(), with_c=st.booleans())
-def test_controllability_staircase(model, tol, with_c):
-    (a, b, c, _), _ = model
-    a2, b2 = copy.deepcopy((a, b))  # the inputs are overwritten after each call
-    s = attempt(sw.controllability_staircase, a, b, c if with_c else None, tol=tol)
-    n = np.shape(a)[0] if s is not FAILED else None
-    if s is not FAILED:
-        check_staircase(s, n, np.shape(b)[1], np.shape(c)[0] if with_c and c is not None else None)
-    yes = attempt(sw.is_controllable, a2, b2, tol=tol)
-    if yes is not FAILED:
-        assert isinstance(yes, bool)
-        if s is not FAILED:
-            assert yes == (s.rank == n)
+# The two staircases are duals: (function, decision, which of B and C is the pair's own).
+STAIRCASES = {
+    "controllability": (sw.controllability_staircase, sw.is_controllable, "b"),
+    "observability": (sw.observability_staircase, sw.is_observable, "c"),
+}
 
 
+@pytest.mark.parametrize("kind", sorted(STAIRCASES))
 @CI
-@given(model=float_model(), tol=bad_tol(), with_b=st.booleans())
-def test_observability_staircase(model, tol, with_b):
+@given(model=float_model(), tol=bad_tol(), with_other=st.booleans())
+def test_staircase(kind, model, tol, with_other):
+    # The pair's own matrix is always passed; the other (C for controllability, B for
+    # observability) only when with_other is set. The decision must agree with the rank.
+    staircase, decision, own = STAIRCASES[kind]
     (a, b, c, _), _ = model
-    a2, c2 = copy.deepcopy((a, c))  # the inputs are overwritten after each call
-    s = attempt(sw.observability_staircase, a, b if with_b else None, c, tol=tol)
+    a2, b2, c2 = copy.deepcopy((a, b, c))  # the inputs are overwritten after each call
+    b_in = b if own == "b" or with_other else None
+    c_in = c if own == "c" or with_other else None
+    s = attempt(staircase, a, b_in, c_in, tol=tol)
     n = np.shape(a)[0] if s is not FAILED else None
     if s is not FAILED:
-        check_staircase(s, n, np.shape(b)[1] if with_b and b is not None else None, np.shape(c)[0])
-    yes = attempt(sw.is_observable, a2, c2, tol=tol)
+        check_staircase(s, n, np.shape(b)[1] if b_in is not None else None,
+                        np.shape(c)[0] if c_in is not None else None)
+    yes = attempt(decision, a2, b2 if own == "b" else c2, tol=tol)
     if yes is not FAILED:
         assert isinstance(yes, bool)
         if s is not FAILED:
@@ -1260,17 +1258,22 @@ except sw.ModelError as exc:
 """
 
 
+def run_within(script, seconds, what):
+    """Run `script` in a fresh interpreter (so that a hang is cut off); fail if it takes
+    more than `seconds` or exits with an error."""
+    try:
+        proc = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=seconds)
+    except subprocess.TimeoutExpired:
+        pytest.fail(f"{what} took more than {seconds} s")
+    assert proc.returncode == 0, proc.stderr
+
+
 def test_exact_huge_integer_finishes():
     """A one-state exact realization with a million-digit numerator (Python itself builds
     and prints such an int in well under a second) either succeeds or is refused with
     ModelError within 10 s: "no input, however bad, hangs". Run in a subprocess so that a
     hang is cut off."""
-    try:
-        proc = subprocess.run([sys.executable, "-c", HUGE_EXACT_SCRIPT], capture_output=True, text=True,
-                              timeout=10)
-    except subprocess.TimeoutExpired:
-        pytest.fail("realize([10**1000000], [1, 2], exact=True) took more than 10 s")
-    assert proc.returncode == 0, proc.stderr
+    run_within(HUGE_EXACT_SCRIPT, 10, "realize([10**1000000], [1, 2], exact=True)")
 
 
 LARGE_EXACT_SCRIPT = """
@@ -1290,9 +1293,4 @@ def test_exact_entries_within_the_size_limit_finish():
     """Exact entries just inside the per-entry size limit (4000-bit numerators and
     denominators, 36 of them): the characteristic polynomial of this 6 x 6 matrix either
     comes back or is refused with ModelError within 20 s."""
-    try:
-        proc = subprocess.run([sys.executable, "-c", LARGE_EXACT_SCRIPT], capture_output=True, text=True,
-                              timeout=20)
-    except subprocess.TimeoutExpired:
-        pytest.fail("characteristic_polynomial(6 x 6 of 4000-bit fractions, exact=True) took more than 20 s")
-    assert proc.returncode == 0, proc.stderr
+    run_within(LARGE_EXACT_SCRIPT, 20, "characteristic_polynomial(6 x 6 of 4000-bit fractions, exact=True)")
