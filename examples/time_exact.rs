@@ -17,7 +17,10 @@ use std::time::Instant;
 struct Lcg(u64);
 impl Lcg {
     fn uniform(&mut self) -> f64 {
-        self.0 = self.0.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        self.0 = self
+            .0
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
         (self.0 >> 11) as f64 / (1u64 << 53) as f64
     }
     fn normal(&mut self) -> f64 {
@@ -29,12 +32,18 @@ impl Lcg {
 
 fn spread_model(n: usize, wide: bool, rng: &mut Lcg) -> Matrix<f64> {
     let t = DMatrix::from_fn(n, n, |_, _| rng.normal());
-    let poles = DMatrix::from_diagonal(&nalgebra::DVector::from_fn(n, |_, _| -(10f64.powf(rng.uniform() * 4.0 - 2.0))));
+    let poles = DMatrix::from_diagonal(&nalgebra::DVector::from_fn(n, |_, _| {
+        -(10f64.powf(rng.uniform() * 4.0 - 2.0))
+    }));
     let a = &t * poles * t.clone().try_inverse().expect("random T is invertible");
     let data = (0..n * n)
         .map(|k| {
             let v = a[(k / n, k % n)];
-            if wide { v * 2f64.powi(if rng.uniform() < 0.5 { -300 } else { 300 }) } else { v }
+            if wide {
+                v * 2f64.powi(if rng.uniform() < 0.5 { -300 } else { 300 })
+            } else {
+                v
+            }
         })
         .collect();
     Matrix::from_row_major(n, n, data).unwrap()
@@ -44,7 +53,18 @@ fn main() {
     let mut rng = Lcg(2026);
     println!("| n | entries | integer bits | coefficient bound bits | modular [ms] | estimate [ms] | big-integer recursion [ms] | ratio |");
     println!("| --- | --- | --- | --- | --- | --- | --- | --- |");
-    for &(n, wide) in &[(10, false), (20, false), (30, false), (40, false), (64, false), (128, false), (256, false), (10, true), (20, true), (40, true)] {
+    for &(n, wide) in &[
+        (10, false),
+        (20, false),
+        (30, false),
+        (40, false),
+        (64, false),
+        (128, false),
+        (256, false),
+        (10, true),
+        (20, true),
+        (40, true),
+    ] {
         let a = spread_model(n, wide, &mut rng);
         let dy = DyadicMatrix::from_f64(&a);
         let entry_bits = modular::max_entry_bits(&dy.m);
@@ -59,7 +79,10 @@ fn main() {
             let (slow, _) = faddeev_leverrier(&dy.m);
             let slow_s = started.elapsed().as_secs_f64();
             assert_eq!(slow, fast, "both methods are exact");
-            (format!("{:.1}", slow_s * 1e3), format!("{:.0}×", slow_s / modular_s))
+            (
+                format!("{:.1}", slow_s * 1e3),
+                format!("{:.0}×", slow_s / modular_s),
+            )
         } else {
             ("—".to_string(), "—".to_string())
         };
@@ -79,16 +102,32 @@ fn main() {
     println!("| --- | --- | --- | --- |");
     for n in [8, 16, 24, 40] {
         let a = DyadicMatrix::from_f64(&spread_model(n, false, &mut rng));
-        let b = DyadicMatrix::from_f64(&Matrix::from_row_major(n, 1, (0..n).map(|_| rng.normal()).collect()).unwrap());
-        let c = DyadicMatrix::from_f64(&Matrix::from_row_major(1, n, (0..n).map(|_| rng.normal()).collect()).unwrap());
+        let b = DyadicMatrix::from_f64(
+            &Matrix::from_row_major(n, 1, (0..n).map(|_| rng.normal()).collect()).unwrap(),
+        );
+        let c = DyadicMatrix::from_f64(
+            &Matrix::from_row_major(1, n, (0..n).map(|_| rng.normal()).collect()).unwrap(),
+        );
         let started = Instant::now();
         let (coeffs, terms) = modular::transfer_terms(&a.m, &b.m, &c.m);
         let modular_s = started.elapsed().as_secs_f64();
         let started = Instant::now();
         let (slow_coeffs, adjugates) = faddeev_leverrier(&a.m);
-        let slow_terms: Vec<_> = adjugates.iter().map(|nk| c.m.matmul(&nk.matmul(&b.m)).get(0, 0).clone()).collect();
+        let slow_terms: Vec<_> = adjugates
+            .iter()
+            .map(|nk| c.m.matmul(&nk.matmul(&b.m)).get(0, 0).clone())
+            .collect();
         let slow_s = started.elapsed().as_secs_f64();
-        assert_eq!((coeffs, terms), (slow_coeffs, slow_terms), "both routes are exact");
-        println!("| {n} | {:.1} | {:.1} | {:.0}× |", modular_s * 1e3, slow_s * 1e3, slow_s / modular_s);
+        assert_eq!(
+            (coeffs, terms),
+            (slow_coeffs, slow_terms),
+            "both routes are exact"
+        );
+        println!(
+            "| {n} | {:.1} | {:.1} | {:.0}× |",
+            modular_s * 1e3,
+            slow_s * 1e3,
+            slow_s / modular_s
+        );
     }
 }

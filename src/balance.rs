@@ -77,8 +77,19 @@ pub fn balance_model(ss: &StateSpace<f64>) -> (StateSpace<f64>, Vec<f64>) {
             c.set(r, i, c.get(r, i) * s);
         }
     }
-    if [&a, &b, &c].iter().any(|m| m.as_slice().iter().any(|v| !v.is_finite())) {
+    if [&a, &b, &c]
+        .iter()
+        .any(|m| m.as_slice().iter().any(|v| !v.is_finite()))
+    {
         return (ss.clone(), vec![1.0; ss.n_states()]);
     }
-    (StateSpace { a, b, c, d: ss.d.clone() }, scale)
+    (
+        StateSpace {
+            a,
+            b,
+            c,
+            d: ss.d.clone(),
+        },
+        scale,
+    )
 }

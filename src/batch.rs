@@ -56,7 +56,10 @@ impl FirstError {
     }
     fn into_result(self) -> Result<()> {
         match self.0.into_inner().unwrap_or_else(|p| p.into_inner()) {
-            Some((index, source)) => Err(ModelError::Batch { index, source: Box::new(source) }),
+            Some((index, source)) => Err(ModelError::Batch {
+                index,
+                source: Box::new(source),
+            }),
             None => Ok(()),
         }
     }
@@ -74,7 +77,14 @@ fn check_size(arg: &'static str, values: usize) -> Result<()> {
 
 /// `num` is (count, k) and `den` (count, n+1), row-major; every den must have a nonzero
 /// leading coefficient (all models of the batch share the order n).
-pub fn realize_batch(num: &[f64], k: usize, den: &[f64], n_plus_1: usize, count: usize, form: Form) -> Result<RealizationBatch> {
+pub fn realize_batch(
+    num: &[f64],
+    k: usize,
+    den: &[f64],
+    n_plus_1: usize,
+    count: usize,
+    form: Form,
+) -> Result<RealizationBatch> {
     if n_plus_1 == 0 {
         return Err(ModelError::ZeroPolynomial { arg: "den" });
     }
@@ -82,7 +92,10 @@ pub fn realize_batch(num: &[f64], k: usize, den: &[f64], n_plus_1: usize, count:
         return Err(ModelError::ZeroPolynomial { arg: "num" });
     }
     if k > n_plus_1 {
-        return Err(ModelError::Improper { num_degree: k - 1, den_degree: n_plus_1 - 1 });
+        return Err(ModelError::Improper {
+            num_degree: k - 1,
+            den_degree: n_plus_1 - 1,
+        });
     }
     let n = n_plus_1 - 1;
     let total = count.checked_mul(n * n + 2 * n + 1).unwrap_or(usize::MAX);
@@ -90,7 +103,12 @@ pub fn realize_batch(num: &[f64], k: usize, den: &[f64], n_plus_1: usize, count:
     // Chunks must exist for every model even when n = 0, so each buffer has at least one slot
     // per model; the padding is dropped afterwards.
     let (na, nb) = ((n * n).max(1), n.max(1));
-    let (mut a, mut b, mut c, mut d) = (vec![0.0; count * na], vec![0.0; count * nb], vec![0.0; count * nb], vec![0.0; count]);
+    let (mut a, mut b, mut c, mut d) = (
+        vec![0.0; count * na],
+        vec![0.0; count * nb],
+        vec![0.0; count * nb],
+        vec![0.0; count],
+    );
     let failure = FirstError::new();
     a.par_chunks_mut(na)
         .zip(b.par_chunks_mut(nb))
@@ -126,7 +144,16 @@ pub fn realize_batch(num: &[f64], k: usize, den: &[f64], n_plus_1: usize, count:
 }
 
 /// `a` (count, n, n), `b` (count, n, m), `c` (count, p, n), `d` (count, p, m), row-major.
-pub fn transfer_function_batch(a: &[f64], b: &[f64], c: &[f64], d: &[f64], count: usize, n: usize, m: usize, p: usize) -> Result<TransferBatch> {
+pub fn transfer_function_batch(
+    a: &[f64],
+    b: &[f64],
+    c: &[f64],
+    d: &[f64],
+    count: usize,
+    n: usize,
+    m: usize,
+    p: usize,
+) -> Result<TransferBatch> {
     let per_num = p * m * (n + 1);
     let total = count.checked_mul(per_num + n + 1).unwrap_or(usize::MAX);
     check_size("a", total)?;
@@ -138,9 +165,19 @@ pub fn transfer_function_batch(a: &[f64], b: &[f64], c: &[f64], d: &[f64], count
         .enumerate()
         .for_each(|(i, (num_i, den_i))| {
             let take = |data: &[f64], rows: usize, cols: usize| {
-                Matrix::from_row_major(rows, cols, data[i * rows * cols..(i + 1) * rows * cols].to_vec()).expect("slice")
+                Matrix::from_row_major(
+                    rows,
+                    cols,
+                    data[i * rows * cols..(i + 1) * rows * cols].to_vec(),
+                )
+                .expect("slice")
             };
-            let ss = StateSpace { a: take(a, n, n), b: take(b, n, m), c: take(c, p, n), d: take(d, p, m) };
+            let ss = StateSpace {
+                a: take(a, n, n),
+                b: take(b, n, m),
+                c: take(c, p, n),
+                d: take(d, p, m),
+            };
             match transfer_function_f64(&ss, Method::Auto) {
                 Ok((nm, dn, _)) => {
                     num_i[..per_num].copy_from_slice(&nm);

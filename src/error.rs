@@ -8,15 +8,26 @@ use std::fmt;
 #[derive(Debug, Clone, PartialEq)]
 pub enum ModelError {
     /// An argument has the wrong shape or size.
-    Shape { arg: &'static str, expected: String, found: String },
+    Shape {
+        arg: &'static str,
+        expected: String,
+        found: String,
+    },
     /// An argument holds NaN or an infinity.
     NonFinite { arg: &'static str },
     /// A polynomial is empty, or zero where a nonzero one is needed.
     ZeroPolynomial { arg: &'static str },
     /// The numerator degree exceeds the denominator degree.
-    Improper { num_degree: usize, den_degree: usize },
+    Improper {
+        num_degree: usize,
+        den_degree: usize,
+    },
     /// An option has a value outside its documented set.
-    BadOption { arg: &'static str, found: String, allowed: &'static str },
+    BadOption {
+        arg: &'static str,
+        found: String,
+        allowed: &'static str,
+    },
     /// A value cannot be used as given (e.g. a malformed exact number).
     BadValue { arg: &'static str, detail: String },
     /// The modal form does not exist (repeated, defective poles) or is too ill-conditioned to trust.
@@ -28,7 +39,10 @@ pub enum ModelError {
     /// The request would need more memory or time than is reasonable; refused before allocation.
     TooLarge { arg: &'static str, detail: String },
     /// A model of a batch failed; `index` says which.
-    Batch { index: usize, source: Box<ModelError> },
+    Batch {
+        index: usize,
+        source: Box<ModelError>,
+    },
 }
 
 pub type Result<T> = std::result::Result<T, ModelError>;

@@ -12,7 +12,11 @@ pub struct Matrix<T> {
 
 impl<T: Scalar> Matrix<T> {
     pub fn zeros(rows: usize, cols: usize) -> Self {
-        Matrix { rows, cols, data: vec![T::zero(); rows * cols] }
+        Matrix {
+            rows,
+            cols,
+            data: vec![T::zero(); rows * cols],
+        }
     }
 
     pub fn identity(n: usize) -> Self {
@@ -28,14 +32,28 @@ impl<T: Scalar> Matrix<T> {
         (data.len() == rows * cols).then_some(Matrix { rows, cols, data })
     }
 
-    pub fn rows(&self) -> usize { self.rows }
-    pub fn cols(&self) -> usize { self.cols }
-    pub fn as_slice(&self) -> &[T] { &self.data }
-    pub fn as_mut_slice(&mut self) -> &mut [T] { &mut self.data }
-    pub fn into_vec(self) -> Vec<T> { self.data }
+    pub fn rows(&self) -> usize {
+        self.rows
+    }
+    pub fn cols(&self) -> usize {
+        self.cols
+    }
+    pub fn as_slice(&self) -> &[T] {
+        &self.data
+    }
+    pub fn as_mut_slice(&mut self) -> &mut [T] {
+        &mut self.data
+    }
+    pub fn into_vec(self) -> Vec<T> {
+        self.data
+    }
 
-    pub fn get(&self, i: usize, j: usize) -> &T { &self.data[i * self.cols + j] }
-    pub fn set(&mut self, i: usize, j: usize, v: T) { self.data[i * self.cols + j] = v; }
+    pub fn get(&self, i: usize, j: usize) -> &T {
+        &self.data[i * self.cols + j]
+    }
+    pub fn set(&mut self, i: usize, j: usize, v: T) {
+        self.data[i * self.cols + j] = v;
+    }
 
     pub fn transpose(&self) -> Self {
         let mut t = Self::zeros(self.cols, self.rows);
@@ -76,7 +94,11 @@ impl<T: Scalar> Matrix<T> {
     }
 
     pub fn map<U: Scalar>(&self, f: impl Fn(&T) -> U) -> Matrix<U> {
-        Matrix { rows: self.rows, cols: self.cols, data: self.data.iter().map(f).collect() }
+        Matrix {
+            rows: self.rows,
+            cols: self.cols,
+            data: self.data.iter().map(f).collect(),
+        }
     }
 }
 
@@ -94,7 +116,12 @@ pub fn scaled_frobenius_norm(factor: f64, values: &[f64]) -> f64 {
     if big == 0.0 || !big.is_finite() {
         return factor * big;
     }
-    (factor * big) * values.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+    (factor * big)
+        * values
+            .iter()
+            .map(|v| (v / big) * (v / big))
+            .sum::<f64>()
+            .sqrt()
 }
 
 fn largest_magnitude<'a>(values: impl IntoIterator<Item = &'a f64>) -> f64 {

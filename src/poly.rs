@@ -55,7 +55,10 @@ impl<T: Scalar> ProperSplit<T> {
 
 /// The coefficients after the leading zeros; empty when all are zero.
 pub fn strip_leading_zeros<T: Scalar>(coeffs: &[T]) -> &[T] {
-    let first = coeffs.iter().position(|c| !c.is_zero()).unwrap_or(coeffs.len());
+    let first = coeffs
+        .iter()
+        .position(|c| !c.is_zero())
+        .unwrap_or(coeffs.len());
     &coeffs[first..]
 }
 
@@ -75,7 +78,10 @@ pub fn split_proper<T: Scalar>(num: &[T], den: &[T]) -> Result<ProperSplit<T>> {
     let num = strip_leading_zeros(num);
     let n = den.len() - 1;
     if num.len() > den.len() {
-        return Err(ModelError::Improper { num_degree: num.len() - 1, den_degree: n });
+        return Err(ModelError::Improper {
+            num_degree: num.len() - 1,
+            den_degree: n,
+        });
     }
     let lead = den[0].clone();
     let monic: Vec<T> = den.iter().map(|c| c.div_exact(&lead)).collect();
@@ -84,5 +90,9 @@ pub fn split_proper<T: Scalar>(num: &[T], den: &[T]) -> Result<ProperSplit<T>> {
     b.extend(num.iter().map(|c| c.div_exact(&lead)));
     let direct = b[0].clone();
     let strict_num = (1..=n).map(|i| b[i].sub(&monic[i].mul(&direct))).collect();
-    Ok(ProperSplit { den: monic, strict_num, direct })
+    Ok(ProperSplit {
+        den: monic,
+        strict_num,
+        direct,
+    })
 }

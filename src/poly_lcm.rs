@@ -121,7 +121,9 @@ mod tests {
     use num_rational::BigRational;
 
     fn q(v: &[i64]) -> Vec<BigRational> {
-        v.iter().map(|&k| BigRational::from_integer(BigInt::from(k))).collect()
+        v.iter()
+            .map(|&k| BigRational::from_integer(BigInt::from(k)))
+            .collect()
     }
 
     #[test]

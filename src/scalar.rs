@@ -26,45 +26,99 @@ pub trait Scalar: Clone + PartialEq + Debug + Send + Sync + 'static {
 }
 
 impl Scalar for f64 {
-    fn zero() -> Self { 0.0 }
-    fn one() -> Self { 1.0 }
-    fn from_i64(k: i64) -> Self { k as f64 }
-    fn is_zero(&self) -> bool { *self == 0.0 }
-    fn add(&self, o: &Self) -> Self { self + o }
-    fn sub(&self, o: &Self) -> Self { self - o }
-    fn mul(&self, o: &Self) -> Self { self * o }
-    fn neg(&self) -> Self { -self }
+    fn zero() -> Self {
+        0.0
+    }
+    fn one() -> Self {
+        1.0
+    }
+    fn from_i64(k: i64) -> Self {
+        k as f64
+    }
+    fn is_zero(&self) -> bool {
+        *self == 0.0
+    }
+    fn add(&self, o: &Self) -> Self {
+        self + o
+    }
+    fn sub(&self, o: &Self) -> Self {
+        self - o
+    }
+    fn mul(&self, o: &Self) -> Self {
+        self * o
+    }
+    fn neg(&self) -> Self {
+        -self
+    }
     // Deliberately not fused: results stay identical on every CPU.
-    fn add_mul(&mut self, a: &Self, b: &Self) { *self += a * b; }
-    fn div_exact(&self, o: &Self) -> Self { self / o }
+    fn add_mul(&mut self, a: &Self, b: &Self) {
+        *self += a * b;
+    }
+    fn div_exact(&self, o: &Self) -> Self {
+        self / o
+    }
 }
 
 impl Scalar for BigRational {
-    fn zero() -> Self { Zero::zero() }
-    fn one() -> Self { One::one() }
-    fn from_i64(k: i64) -> Self { BigRational::from_integer(BigInt::from(k)) }
-    fn is_zero(&self) -> bool { Zero::is_zero(self) }
-    fn add(&self, o: &Self) -> Self { self + o }
-    fn sub(&self, o: &Self) -> Self { self - o }
-    fn mul(&self, o: &Self) -> Self { self * o }
-    fn neg(&self) -> Self { -self }
+    fn zero() -> Self {
+        Zero::zero()
+    }
+    fn one() -> Self {
+        One::one()
+    }
+    fn from_i64(k: i64) -> Self {
+        BigRational::from_integer(BigInt::from(k))
+    }
+    fn is_zero(&self) -> bool {
+        Zero::is_zero(self)
+    }
+    fn add(&self, o: &Self) -> Self {
+        self + o
+    }
+    fn sub(&self, o: &Self) -> Self {
+        self - o
+    }
+    fn mul(&self, o: &Self) -> Self {
+        self * o
+    }
+    fn neg(&self) -> Self {
+        -self
+    }
     fn add_mul(&mut self, a: &Self, b: &Self) {
         if !Zero::is_zero(a) && !Zero::is_zero(b) {
             *self += a * b;
         }
     }
-    fn div_exact(&self, o: &Self) -> Self { self / o }
+    fn div_exact(&self, o: &Self) -> Self {
+        self / o
+    }
 }
 
 impl Scalar for BigInt {
-    fn zero() -> Self { Zero::zero() }
-    fn one() -> Self { One::one() }
-    fn from_i64(k: i64) -> Self { BigInt::from(k) }
-    fn is_zero(&self) -> bool { Zero::is_zero(self) }
-    fn add(&self, o: &Self) -> Self { self + o }
-    fn sub(&self, o: &Self) -> Self { self - o }
-    fn mul(&self, o: &Self) -> Self { self * o }
-    fn neg(&self) -> Self { -self }
+    fn zero() -> Self {
+        Zero::zero()
+    }
+    fn one() -> Self {
+        One::one()
+    }
+    fn from_i64(k: i64) -> Self {
+        BigInt::from(k)
+    }
+    fn is_zero(&self) -> bool {
+        Zero::is_zero(self)
+    }
+    fn add(&self, o: &Self) -> Self {
+        self + o
+    }
+    fn sub(&self, o: &Self) -> Self {
+        self - o
+    }
+    fn mul(&self, o: &Self) -> Self {
+        self * o
+    }
+    fn neg(&self) -> Self {
+        -self
+    }
     fn add_mul(&mut self, a: &Self, b: &Self) {
         if !Zero::is_zero(a) && !Zero::is_zero(b) {
             *self += a * b;

@@ -19,13 +19,25 @@ impl<T: Scalar> StateSpace<T> {
         let n = a.rows();
         let shape = |m: &Matrix<T>| format!("shape ({}, {})", m.rows(), m.cols());
         if a.cols() != n {
-            return Err(ModelError::Shape { arg: "a", expected: "a square matrix".into(), found: shape(&a) });
+            return Err(ModelError::Shape {
+                arg: "a",
+                expected: "a square matrix".into(),
+                found: shape(&a),
+            });
         }
         if b.rows() != n {
-            return Err(ModelError::Shape { arg: "b", expected: format!("{n} rows (one per state)"), found: shape(&b) });
+            return Err(ModelError::Shape {
+                arg: "b",
+                expected: format!("{n} rows (one per state)"),
+                found: shape(&b),
+            });
         }
         if c.cols() != n {
-            return Err(ModelError::Shape { arg: "c", expected: format!("{n} columns (one per state)"), found: shape(&c) });
+            return Err(ModelError::Shape {
+                arg: "c",
+                expected: format!("{n} columns (one per state)"),
+                found: shape(&c),
+            });
         }
         if d.rows() != c.rows() || d.cols() != b.cols() {
             return Err(ModelError::Shape {
@@ -37,13 +49,24 @@ impl<T: Scalar> StateSpace<T> {
         Ok(StateSpace { a, b, c, d })
     }
 
-    pub fn n_states(&self) -> usize { self.a.rows() }
-    pub fn n_inputs(&self) -> usize { self.b.cols() }
-    pub fn n_outputs(&self) -> usize { self.c.rows() }
+    pub fn n_states(&self) -> usize {
+        self.a.rows()
+    }
+    pub fn n_inputs(&self) -> usize {
+        self.b.cols()
+    }
+    pub fn n_outputs(&self) -> usize {
+        self.c.rows()
+    }
 
     /// The dual system `(Aᵀ, Cᵀ, Bᵀ, Dᵀ)`: same transfer function transposed; swaps
     /// controllability and observability.
     pub fn dual(&self) -> Self {
-        StateSpace { a: self.a.transpose(), b: self.c.transpose(), c: self.b.transpose(), d: self.d.transpose() }
+        StateSpace {
+            a: self.a.transpose(),
+            b: self.c.transpose(),
+            c: self.b.transpose(),
+            d: self.d.transpose(),
+        }
     }
 }

@@ -26,7 +26,10 @@ pub(crate) struct Lcg(pub u64);
 
 impl Lcg {
     pub(crate) fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        self.0 = self
+            .0
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
         self.0 >> 11
     }
 
@@ -58,9 +61,21 @@ fn proper_split_of_a_non_monic_biproper_function() {
 fn leading_zeros_pure_gain_and_bad_polynomials() {
     let s = split_proper(&qs(&[0, 0, 4]), &qs(&[0, 2])).unwrap();
     assert_eq!((s.order(), s.direct.clone()), (0, q(2, 1)));
-    assert_eq!(split_proper(&qs(&[1, 0]), &qs(&[0, 0])), Err(ModelError::ZeroPolynomial { arg: "den" }));
-    assert_eq!(split_proper::<BigRational>(&[], &qs(&[1])), Err(ModelError::ZeroPolynomial { arg: "num" }));
-    assert_eq!(split_proper(&qs(&[1, 0, 0]), &qs(&[1, 1])), Err(ModelError::Improper { num_degree: 2, den_degree: 1 }));
+    assert_eq!(
+        split_proper(&qs(&[1, 0]), &qs(&[0, 0])),
+        Err(ModelError::ZeroPolynomial { arg: "den" })
+    );
+    assert_eq!(
+        split_proper::<BigRational>(&[], &qs(&[1])),
+        Err(ModelError::ZeroPolynomial { arg: "num" })
+    );
+    assert_eq!(
+        split_proper(&qs(&[1, 0, 0]), &qs(&[1, 1])),
+        Err(ModelError::Improper {
+            num_degree: 2,
+            den_degree: 1
+        })
+    );
     // A zero numerator is the zero transfer function, not an error.
     let z = split_proper(&qs(&[0]), &qs(&[1, 3, 2])).unwrap();
     assert!(z.strict_num.iter().all(|c| *c == q(0, 1)));
@@ -86,7 +101,12 @@ fn controllability_form_has_identity_controllability_matrix() {
     let ss = realize_companion(&qs(&[1, 2, 3]), &qs(&[1, 4, 5, 6]), Form::Controllability).unwrap();
     assert_eq!(controllability_matrix(&ss.a, &ss.b), Matrix::identity(3));
     // (identity) its C holds the Markov parameters h_k = C A^(k−1) B of the controllable form.
-    let cc = realize_companion(&qs(&[1, 2, 3]), &qs(&[1, 4, 5, 6]), Form::ControllableCanonical).unwrap();
+    let cc = realize_companion(
+        &qs(&[1, 2, 3]),
+        &qs(&[1, 4, 5, 6]),
+        Form::ControllableCanonical,
+    )
+    .unwrap();
     let k = controllability_matrix(&cc.a, &cc.b);
     assert_eq!(cc.c.matmul(&k), ss.c);
 }
@@ -97,7 +117,10 @@ fn faddeev_leverrier_of_a_small_integer_matrix() {
     let a = Matrix::from_row_major(2, 2, qs(&[1, 2, 3, 4])).unwrap();
     let (c, adj) = faddeev_leverrier(&a);
     assert_eq!(c, qs(&[1, -5, -2]));
-    assert_eq!(adj[1], Matrix::from_row_major(2, 2, qs(&[-4, 2, 3, -1])).unwrap());
+    assert_eq!(
+        adj[1],
+        Matrix::from_row_major(2, 2, qs(&[-4, 2, 3, -1])).unwrap()
+    );
 }
 
 #[test]
@@ -106,7 +129,10 @@ fn correct_rounding_of_scaled_integers() {
     let two53 = BigInt::from(1u64 << 53);
     assert_eq!(round_scaled(&(&two53 + 1), 0), Some(9007199254740992.0));
     assert_eq!(round_scaled(&(&two53 + 3), 0), Some(9007199254740996.0));
-    assert_eq!(round_scaled(&(BigInt::from(3) << 2000usize), -2000), Some(3.0));
+    assert_eq!(
+        round_scaled(&(BigInt::from(3) << 2000usize), -2000),
+        Some(3.0)
+    );
     assert_eq!(round_scaled(&BigInt::from(-5), -1), Some(-2.5));
     assert_eq!(round_scaled(&BigInt::from(1), 5000), None);
 }
@@ -131,7 +157,9 @@ fn auto_and_exact_agree_and_exact_matches_the_product_of_the_diagonal() {
     let a = spread_matrix(12);
     let (exact, _, acc) = faddeev_leverrier_f64(&a, Method::Exact, false).unwrap();
     assert_eq!(acc.method, "exact, rounded once");
-    let diag: Vec<BigRational> = (0..12).map(|i| BigRational::from_float(*a.get(i, i)).unwrap()).collect();
+    let diag: Vec<BigRational> = (0..12)
+        .map(|i| BigRational::from_float(*a.get(i, i)).unwrap())
+        .collect();
     let product = diag.iter().fold(q(1, 1), |acc, d| acc * (-d.clone()));
     let (auto, _, _) = faddeev_leverrier_f64(&a, Method::Auto, false).unwrap();
     assert_eq!(auto, exact);
@@ -153,7 +181,10 @@ fn transfer_function_float_matches_exact_rationals() {
             let (n_out, d_out, _) = transfer_function_f64(&ss, method).unwrap();
             assert_eq!(d_out, den.to_vec(), "{form:?} {method:?}");
             for (x, y) in n_out.iter().zip(&num) {
-                assert!((x - y).abs() <= 8.0 * f64::EPSILON * y.abs().max(1.0), "{form:?} {method:?}");
+                assert!(
+                    (x - y).abs() <= 8.0 * f64::EPSILON * y.abs().max(1.0),
+                    "{form:?} {method:?}"
+                );
             }
         }
     }
@@ -182,10 +213,19 @@ fn modal_form_orders_poles_and_refuses_double_poles() {
 
 #[test]
 fn bad_float_input_is_refused_not_panicked() {
-    assert_eq!(realize_f64(&[f64::NAN], &[1.0, 1.0], Form::Controller).unwrap_err(), ModelError::NonFinite { arg: "num" });
-    assert!(matches!(realize_f64(&[1.0], &[1e-300, 1e300], Form::Controller), Err(ModelError::Overflow { .. })));
+    assert_eq!(
+        realize_f64(&[f64::NAN], &[1.0, 1.0], Form::Controller).unwrap_err(),
+        ModelError::NonFinite { arg: "num" }
+    );
+    assert!(matches!(
+        realize_f64(&[1.0], &[1e-300, 1e300], Form::Controller),
+        Err(ModelError::Overflow { .. })
+    ));
     let a = Matrix::from_row_major(2, 3, vec![0.0; 6]).unwrap();
-    assert!(matches!(faddeev_leverrier_f64(&a, Method::Auto, true), Err(ModelError::Shape { arg: "a", .. })));
+    assert!(matches!(
+        faddeev_leverrier_f64(&a, Method::Auto, true),
+        Err(ModelError::Shape { arg: "a", .. })
+    ));
 }
 
 mod structure {
@@ -221,16 +261,30 @@ mod structure {
         let a0 = m(3, 3, &[-1.0, 0.0, 0.0, 0.0, -2.0, 0.0, 0.0, 0.0, -3.0]);
         let b0 = m(3, 1, &[1.0, 1.0, 0.0]);
         let q = rotation(3);
-        let (a, b) = (q.transpose().matmul(&a0).matmul(&q), q.transpose().matmul(&b0));
+        let (a, b) = (
+            q.transpose().matmul(&a0).matmul(&q),
+            q.transpose().matmul(&b0),
+        );
         let s = controllability_staircase(&a, &b, None, None).unwrap();
         assert_eq!((s.rank, s.blocks.clone()), (2, vec![1, 1]));
         // (identity) QᵀQ = I and QᵀAQ = the returned A, with the zero block exactly zero.
         let qtq = s.q.transpose().matmul(&s.q);
         let id = Matrix::<f64>::identity(3);
-        assert!(qtq.as_slice().iter().zip(id.as_slice()).all(|(x, y)| (x - y).abs() < 1e-14));
+        assert!(qtq
+            .as_slice()
+            .iter()
+            .zip(id.as_slice())
+            .all(|(x, y)| (x - y).abs() < 1e-14));
         let back = s.q.transpose().matmul(&a).matmul(&s.q);
-        assert!(back.as_slice().iter().zip(s.a.as_slice()).all(|(x, y)| (x - y).abs() < 1e-13));
-        assert_eq!((*s.a.get(2, 0), *s.a.get(2, 1), *s.b.get(2, 0)), (0.0, 0.0, 0.0));
+        assert!(back
+            .as_slice()
+            .iter()
+            .zip(s.a.as_slice())
+            .all(|(x, y)| (x - y).abs() < 1e-13));
+        assert_eq!(
+            (*s.a.get(2, 0), *s.a.get(2, 1), *s.b.get(2, 0)),
+            (0.0, 0.0, 0.0)
+        );
         assert!((s.a.get(2, 2) + 3.0).abs() < 1e-13);
     }
 
@@ -248,8 +302,19 @@ mod structure {
     #[test]
     fn kalman_parts_of_a_diagonal_model() {
         // modes −1 (c, o), −2 (c, not o), −3 (not c, o), −4 (neither) (hand)
-        let a = m(4, 4, &[-1.0, 0.0, 0.0, 0.0, 0.0, -2.0, 0.0, 0.0, 0.0, 0.0, -3.0, 0.0, 0.0, 0.0, 0.0, -4.0]);
-        let ss = StateSpace { a, b: m(4, 1, &[1.0, 1.0, 0.0, 0.0]), c: m(1, 4, &[1.0, 0.0, 1.0, 0.0]), d: m(1, 1, &[0.5]) };
+        let a = m(
+            4,
+            4,
+            &[
+                -1.0, 0.0, 0.0, 0.0, 0.0, -2.0, 0.0, 0.0, 0.0, 0.0, -3.0, 0.0, 0.0, 0.0, 0.0, -4.0,
+            ],
+        );
+        let ss = StateSpace {
+            a,
+            b: m(4, 1, &[1.0, 1.0, 0.0, 0.0]),
+            c: m(1, 4, &[1.0, 0.0, 1.0, 0.0]),
+            d: m(1, 1, &[0.5]),
+        };
         let k = kalman_decomposition(&ss, None).unwrap();
         assert_eq!(k.sizes, [1, 1, 1, 1]);
         let diag: Vec<f64> = (0..4).map(|i| *k.realization.a.get(i, i)).collect();
@@ -269,10 +334,25 @@ mod structure {
         let (b1, c1, d) = (m(2, 1, &[0.0, 1.0]), m(1, 2, &[3.0, 1.0]), m(1, 1, &[0.0]));
         let t = m(2, 2, &[2.0, 1.0, 1.0, 1.0]); // T⁻¹ = [[1, −1], [−1, 2]]
         let ti = m(2, 2, &[1.0, -1.0, -1.0, 2.0]);
-        let r1 = StateSpace { a: a1.clone(), b: b1.clone(), c: c1.clone(), d: d.clone() };
-        let r2 = StateSpace { a: ti.matmul(&a1).matmul(&t), b: ti.matmul(&b1), c: c1.matmul(&t), d };
+        let r1 = StateSpace {
+            a: a1.clone(),
+            b: b1.clone(),
+            c: c1.clone(),
+            d: d.clone(),
+        };
+        let r2 = StateSpace {
+            a: ti.matmul(&a1).matmul(&t),
+            b: ti.matmul(&b1),
+            c: c1.matmul(&t),
+            d,
+        };
         let s = similarity(&r1, &r2, None).unwrap();
-        assert!(s.t.as_slice().iter().zip(t.as_slice()).all(|(x, y)| (x - y).abs() < 1e-12));
+        assert!(s
+            .t
+            .as_slice()
+            .iter()
+            .zip(t.as_slice())
+            .all(|(x, y)| (x - y).abs() < 1e-12));
     }
 }
 
@@ -329,14 +409,20 @@ mod harness {
 
     #[test]
     fn core_entry_points_never_panic() {
-        let forms: Vec<Form> = super::COMPANION_FORMS.iter().copied().chain([Form::Modal]).collect();
+        let forms: Vec<Form> = super::COMPANION_FORMS
+            .iter()
+            .copied()
+            .chain([Form::Modal])
+            .collect();
         let mut rng = Rng(super::Lcg(2026));
         for _ in 0..CASES {
             let (kn, kd) = (rng.below(6), rng.below(6));
             let (num, den) = (rng.vec(kn), rng.vec(kd));
             let form = forms[rng.below(forms.len())];
             if let Ok((ss, _)) = realize_f64(&num, &den, form) {
-                assert!(finite(ss.a.as_slice()) && finite(ss.b.as_slice()) && finite(ss.c.as_slice()));
+                assert!(
+                    finite(ss.a.as_slice()) && finite(ss.b.as_slice()) && finite(ss.c.as_slice())
+                );
             }
             let n = rng.below(5);
             let (m, p) = (rng.below(3), rng.below(3));
@@ -359,7 +445,16 @@ mod harness {
                 let _ = minimal_realization(&ss, None);
                 let _ = kalman_decomposition(&ss, None);
                 let _ = similarity(&ss, &ss, None);
-                let _ = transfer_function_batch(a.as_slice(), b.as_slice(), c.as_slice(), d.as_slice(), 1, n, m, p);
+                let _ = transfer_function_batch(
+                    a.as_slice(),
+                    b.as_slice(),
+                    c.as_slice(),
+                    d.as_slice(),
+                    1,
+                    n,
+                    m,
+                    p,
+                );
             }
             let k = num.len().max(1);
             let d1 = den.len().max(1);

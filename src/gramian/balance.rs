@@ -66,8 +66,11 @@ fn square_root_factor(w: &DMatrix<f64>) -> Result<DMatrix<f64>> {
     if n == 0 {
         return Ok(DMatrix::zeros(0, 0));
     }
-    let e = SymmetricEigen::try_new(w.clone(), f64::EPSILON, iterations(n))
-        .ok_or(ModelError::NoConvergence { routine: "the eigen-decomposition of a Gramian" })?;
+    let e = SymmetricEigen::try_new(w.clone(), f64::EPSILON, iterations(n)).ok_or(
+        ModelError::NoConvergence {
+            routine: "the eigen-decomposition of a Gramian",
+        },
+    )?;
     let mut l = e.eigenvectors;
     for j in 0..n {
         let s = e.eigenvalues[j].max(0.0).sqrt();
@@ -88,19 +91,33 @@ struct SquareRoot {
     g: Gramians,
 }
 
-fn square_root(a: &Matrix<f64>, b: &Matrix<f64>, c: &Matrix<f64>, discrete: bool) -> Result<SquareRoot> {
+fn square_root(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: &Matrix<f64>,
+    discrete: bool,
+) -> Result<SquareRoot> {
     let g = gramians(a, b, c, discrete)?;
     let n = a.rows();
     let lc = square_root_factor(&g.wc)?;
     let lo = square_root_factor(&g.wo)?;
     if n == 0 {
         let e = DMatrix::zeros(0, 0);
-        return Ok(SquareRoot { lc, lo, u: e.clone(), sigma: Vec::new(), z: e, g });
+        return Ok(SquareRoot {
+            lc,
+            lo,
+            u: e.clone(),
+            sigma: Vec::new(),
+            z: e,
+            g,
+        });
     }
     let product = lo.transpose() * &lc;
     let svd = product
         .try_svd(true, true, f64::EPSILON, iterations(n))
-        .ok_or(ModelError::NoConvergence { routine: "the SVD of the product of Gramian factors" })?;
+        .ok_or(ModelError::NoConvergence {
+            routine: "the SVD of the product of Gramian factors",
+        })?;
     let (u, vt) = (svd.u.expect("computed"), svd.v_t.expect("computed"));
     // Sort descending (nalgebra's ordered SVD already is; keep it explicit and cheap).
     let mut idx: Vec<usize> = (0..n).collect();
@@ -108,11 +125,23 @@ fn square_root(a: &Matrix<f64>, b: &Matrix<f64>, c: &Matrix<f64>, discrete: bool
     let sigma: Vec<f64> = idx.iter().map(|&i| svd.singular_values[i]).collect();
     let u = DMatrix::from_fn(n, n, |i, j| u[(i, idx[j])]);
     let z = DMatrix::from_fn(n, n, |i, j| vt[(idx[j], i)]);
-    Ok(SquareRoot { lc, lo, u, sigma, z, g })
+    Ok(SquareRoot {
+        lc,
+        lo,
+        u,
+        sigma,
+        z,
+        g,
+    })
 }
 
 /// The Hankel singular values, descending.
-pub fn hankel_singular_values(a: &Matrix<f64>, b: &Matrix<f64>, c: &Matrix<f64>, discrete: bool) -> Result<Vec<f64>> {
+pub fn hankel_singular_values(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: &Matrix<f64>,
+    discrete: bool,
+) -> Result<Vec<f64>> {
     Ok(square_root(a, b, c, discrete)?.sigma)
 }
 
@@ -122,7 +151,11 @@ pub fn nonzero_level(sigma: &[f64]) -> f64 {
 }
 
 /// The balanced realization, truncated to `order` states when given.
-pub fn balanced_realization(ss: &StateSpace<f64>, order: Option<usize>, discrete: bool) -> Result<Balanced> {
+pub fn balanced_realization(
+    ss: &StateSpace<f64>,
+    order: Option<usize>,
+    discrete: bool,
+) -> Result<Balanced> {
     require_finite("d", ss.d.as_slice())?;
     let sr = square_root(&ss.a, &ss.b, &ss.c, discrete)?;
     let n = ss.a.rows();
@@ -160,15 +193,30 @@ pub fn balanced_realization(ss: &StateSpace<f64>, order: Option<usize>, discrete
     let cr = c * &t;
     for m in [&ar, &br, &cr] {
         if !m.iter().all(|v| v.is_finite()) {
-            return Err(ModelError::Overflow { what: "the balanced realization".into() });
+            return Err(ModelError::Overflow {
+                what: "the balanced realization".into(),
+            });
         }
     }
     let error_bound = 2.0 * sr.sigma[r..].iter().sum::<f64>();
     let (m, p) = (ss.b.cols(), ss.c.rows());
-    let br = if r == 0 { Matrix::zeros(0, m) } else { from_na(&br) };
-    let cr = if r == 0 { Matrix::zeros(p, 0) } else { from_na(&cr) };
+    let br = if r == 0 {
+        Matrix::zeros(0, m)
+    } else {
+        from_na(&br)
+    };
+    let cr = if r == 0 {
+        Matrix::zeros(p, 0)
+    } else {
+        from_na(&cr)
+    };
     Ok(Balanced {
-        realization: StateSpace { a: from_na(&ar), b: br, c: cr, d: ss.d.clone() },
+        realization: StateSpace {
+            a: from_na(&ar),
+            b: br,
+            c: cr,
+            d: ss.d.clone(),
+        },
         hankel_singular_values: sr.sigma,
         error_bound,
         residuals: sr.g.residuals,
@@ -187,7 +235,9 @@ mod tests {
     #[test]
     fn first_order_closed_form() {
         // 1/(s+1) with b = c = 1: W_c = W_o = 1/2, σ = 1/2 (hand).
-        let s = hankel_singular_values(&m(1, 1, &[-1.0]), &m(1, 1, &[1.0]), &m(1, 1, &[1.0]), false).unwrap();
+        let s =
+            hankel_singular_values(&m(1, 1, &[-1.0]), &m(1, 1, &[1.0]), &m(1, 1, &[1.0]), false)
+                .unwrap();
         assert!((s[0] - 0.5).abs() < 1e-15);
     }
 
@@ -201,7 +251,10 @@ mod tests {
         };
         for discrete in [false, true] {
             let ss = if discrete {
-                StateSpace { a: from_na(&(to_na(&ss.a) * 0.2)), ..ss.clone() }
+                StateSpace {
+                    a: from_na(&(to_na(&ss.a) * 0.2)),
+                    ..ss.clone()
+                }
             } else {
                 ss.clone()
             };
@@ -210,8 +263,14 @@ mod tests {
             let g = gramians(&r.a, &r.b, &r.c, discrete).unwrap();
             for i in 0..3 {
                 for j in 0..3 {
-                    let want = if i == j { bal.hankel_singular_values[i] } else { 0.0 };
-                    assert!((g.wc[(i, j)] - want).abs() < 1e-12 && (g.wo[(i, j)] - want).abs() < 1e-12);
+                    let want = if i == j {
+                        bal.hankel_singular_values[i]
+                    } else {
+                        0.0
+                    };
+                    assert!(
+                        (g.wc[(i, j)] - want).abs() < 1e-12 && (g.wo[(i, j)] - want).abs() < 1e-12
+                    );
                 }
             }
         }
@@ -220,11 +279,41 @@ mod tests {
     #[test]
     fn non_minimal_order_refused() {
         // Second state uncontrollable: one zero Hankel singular value.
-        let ss = StateSpace { a: m(2, 2, &[-1.0, 0.0, 0.0, -2.0]), b: m(2, 1, &[1.0, 0.0]), c: m(1, 2, &[1.0, 1.0]), d: m(1, 1, &[0.0]) };
-        assert_eq!(balanced_realization(&ss, None, false).unwrap().realization.a.rows(), 1);
-        assert!(matches!(balanced_realization(&ss, Some(2), false), Err(ModelError::BadValue { arg: "order", .. })));
-        assert!(matches!(balanced_realization(&ss, Some(3), false), Err(ModelError::BadValue { arg: "order", .. })));
-        let empty = StateSpace { a: Matrix::zeros(0, 0), b: Matrix::zeros(0, 1), c: Matrix::zeros(1, 0), d: m(1, 1, &[2.0]) };
-        assert_eq!(balanced_realization(&empty, None, false).unwrap().realization.a.rows(), 0);
+        let ss = StateSpace {
+            a: m(2, 2, &[-1.0, 0.0, 0.0, -2.0]),
+            b: m(2, 1, &[1.0, 0.0]),
+            c: m(1, 2, &[1.0, 1.0]),
+            d: m(1, 1, &[0.0]),
+        };
+        assert_eq!(
+            balanced_realization(&ss, None, false)
+                .unwrap()
+                .realization
+                .a
+                .rows(),
+            1
+        );
+        assert!(matches!(
+            balanced_realization(&ss, Some(2), false),
+            Err(ModelError::BadValue { arg: "order", .. })
+        ));
+        assert!(matches!(
+            balanced_realization(&ss, Some(3), false),
+            Err(ModelError::BadValue { arg: "order", .. })
+        ));
+        let empty = StateSpace {
+            a: Matrix::zeros(0, 0),
+            b: Matrix::zeros(0, 1),
+            c: Matrix::zeros(1, 0),
+            d: m(1, 1, &[2.0]),
+        };
+        assert_eq!(
+            balanced_realization(&empty, None, false)
+                .unwrap()
+                .realization
+                .a
+                .rows(),
+            0
+        );
     }
 }

@@ -59,8 +59,13 @@ pub struct RealSchur {
 
 pub fn real_schur(a: &DMatrix<f64>) -> Result<RealSchur> {
     let n = a.nrows();
-    let fail = || ModelError::NoConvergence { routine: "the real Schur form of a" };
-    let schur = a.clone().try_schur(f64::EPSILON, 100 * n + 100).ok_or_else(fail)?;
+    let fail = || ModelError::NoConvergence {
+        routine: "the real Schur form of a",
+    };
+    let schur = a
+        .clone()
+        .try_schur(f64::EPSILON, 100 * n + 100)
+        .ok_or_else(fail)?;
     let (u, mut t) = schur.unpack();
     // Below the subdiagonal T is zero in exact arithmetic: make it so.
     for j in 0..n {
@@ -111,9 +116,17 @@ pub fn eigenvalues(s: &RealSchur) -> Vec<(f64, f64)> {
 /// Refuses an unstable model, naming the offending eigenvalue.
 pub fn check_stable(s: &RealSchur, discrete: bool) -> Result<()> {
     for (re, im) in eigenvalues(s) {
-        let bad = if discrete { re.hypot(im) >= 1.0 } else { re >= 0.0 };
+        let bad = if discrete {
+            re.hypot(im) >= 1.0
+        } else {
+            re >= 0.0
+        };
         if bad {
-            let rule = if discrete { "magnitude >= 1 (discrete time)" } else { "real part >= 0 (continuous time)" };
+            let rule = if discrete {
+                "magnitude >= 1 (discrete time)"
+            } else {
+                "real part >= 0 (continuous time)"
+            };
             return Err(ModelError::BadValue {
                 arg: "a",
                 detail: format!(
@@ -129,9 +142,13 @@ pub fn check_stable(s: &RealSchur, discrete: bool) -> Result<()> {
 /// Solves `K y = r` (K of order ≤ 4) by Gaussian elimination with partial pivoting.
 fn small_solve(mut k: [[f64; 4]; 4], mut r: [f64; 4], n: usize) -> Result<[f64; 4]> {
     for col in 0..n {
-        let piv = (col..n).max_by(|&x, &y| k[x][col].abs().total_cmp(&k[y][col].abs())).expect("nonempty");
+        let piv = (col..n)
+            .max_by(|&x, &y| k[x][col].abs().total_cmp(&k[y][col].abs()))
+            .expect("nonempty");
         if k[piv][col] == 0.0 {
-            return Err(ModelError::NoConvergence { routine: "a 2x2 block of the Lyapunov solver (singular)" });
+            return Err(ModelError::NoConvergence {
+                routine: "a 2x2 block of the Lyapunov solver (singular)",
+            });
         }
         k.swap(col, piv);
         r.swap(col, piv);
@@ -156,7 +173,12 @@ fn small_solve(mut k: [[f64; 4]; 4], mut r: [f64; 4], n: usize) -> Result<[f64; 
 
 /// Solves `T X + X Tᵀ = −F` (continuous) or `T X Tᵀ − X = −F` (discrete) on the quasi-upper-
 /// triangular T with the given diagonal blocks.
-pub fn solve_quasi_triangular(t: &DMatrix<f64>, blocks: &[(usize, usize)], f: &DMatrix<f64>, discrete: bool) -> Result<DMatrix<f64>> {
+pub fn solve_quasi_triangular(
+    t: &DMatrix<f64>,
+    blocks: &[(usize, usize)],
+    f: &DMatrix<f64>,
+    discrete: bool,
+) -> Result<DMatrix<f64>> {
     let n = t.nrows();
     let mut x = DMatrix::<f64>::zeros(n, n);
     let mut g = DMatrix::<f64>::zeros(n, 2);
@@ -212,8 +234,11 @@ pub fn solve_quasi_triangular(t: &DMatrix<f64>, blocks: &[(usize, usize)], f: &D
                             let tjj = t[(j0 + c, j0 + c2)];
                             let same_r = if r == r2 { 1.0 } else { 0.0 };
                             let same_c = if c == c2 { 1.0 } else { 0.0 };
-                            k[r + bi * c][r2 + bi * c2] =
-                                if discrete { tjj * tii - same_r * same_c } else { same_c * tii + tjj * same_r };
+                            k[r + bi * c][r2 + bi * c2] = if discrete {
+                                tjj * tii - same_r * same_c
+                            } else {
+                                same_c * tii + tjj * same_r
+                            };
                         }
                     }
                 }
@@ -246,24 +271,39 @@ fn frobenius(m: &DMatrix<f64>) -> f64 {
 /// by ‖W‖ so that neither quotient overflows where the ratio is representable.
 pub fn residual(a: &DMatrix<f64>, w: &DMatrix<f64>, q: &DMatrix<f64>, discrete: bool) -> f64 {
     let aw = a * w;
-    let r = if discrete { &aw * a.transpose() - w + q } else { &aw + aw.transpose() + q };
+    let r = if discrete {
+        &aw * a.transpose() - w + q
+    } else {
+        &aw + aw.transpose() + q
+    };
     let (na, nw, nq, nr) = (frobenius(a), frobenius(w), frobenius(q), frobenius(&r));
     if nw == 0.0 {
         return if nq == 0.0 { 0.0 } else { nr / nq };
     }
-    let scale_over_w = if discrete { na * na + 1.0 + nq / nw } else { 2.0 * na + nq / nw };
+    let scale_over_w = if discrete {
+        na * na + 1.0 + nq / nw
+    } else {
+        2.0 * na + nq / nw
+    };
     (nr / nw) / scale_over_w
 }
 
 /// `A W + W Aᵀ + Q = 0` (or `A W Aᵀ − W + Q = 0`) for a stable A and symmetric Q, given
 /// A's real Schur form.
-pub fn solve_with_schur(a: &DMatrix<f64>, s: &RealSchur, q: &DMatrix<f64>, discrete: bool) -> Result<Solution> {
+pub fn solve_with_schur(
+    a: &DMatrix<f64>,
+    s: &RealSchur,
+    q: &DMatrix<f64>,
+    discrete: bool,
+) -> Result<Solution> {
     let f = s.u.transpose() * q * &s.u;
     let x = solve_quasi_triangular(&s.t, &s.blocks, &f, discrete)?;
     let w = &s.u * x * s.u.transpose();
     let w = (&w + w.transpose()) * 0.5;
     if !w.iter().all(|v| v.is_finite()) {
-        return Err(ModelError::Overflow { what: "the Gramian".into() });
+        return Err(ModelError::Overflow {
+            what: "the Gramian".into(),
+        });
     }
     let residual = residual(a, &w, q, discrete);
     Ok(Solution { w, residual })
@@ -273,10 +313,18 @@ pub fn solve_with_schur(a: &DMatrix<f64>, s: &RealSchur, q: &DMatrix<f64>, discr
 pub fn solve_lyapunov(a: &Matrix<f64>, q: &Matrix<f64>, discrete: bool) -> Result<Solution> {
     let n = a.rows();
     if a.cols() != n {
-        return Err(ModelError::Shape { arg: "a", expected: "a square matrix".into(), found: format!("shape ({}, {})", n, a.cols()) });
+        return Err(ModelError::Shape {
+            arg: "a",
+            expected: "a square matrix".into(),
+            found: format!("shape ({}, {})", n, a.cols()),
+        });
     }
     if q.rows() != n || q.cols() != n {
-        return Err(ModelError::Shape { arg: "q", expected: format!("shape ({n}, {n})"), found: format!("shape ({}, {})", q.rows(), q.cols()) });
+        return Err(ModelError::Shape {
+            arg: "q",
+            expected: format!("shape ({n}, {n})"),
+            found: format!("shape ({}, {})", q.rows(), q.cols()),
+        });
     }
     require_finite("a", a.as_slice())?;
     require_finite("q", q.as_slice())?;
@@ -303,7 +351,12 @@ pub(crate) fn check_triple(a: &Matrix<f64>, b: &Matrix<f64>, c: &Matrix<f64>) ->
 }
 
 /// `A W_c + W_c Aᵀ + B Bᵀ = 0`, `Aᵀ W_o + W_o A + Cᵀ C = 0` (or the Stein equations).
-pub fn gramians(a: &Matrix<f64>, b: &Matrix<f64>, c: &Matrix<f64>, discrete: bool) -> Result<Gramians> {
+pub fn gramians(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: &Matrix<f64>,
+    discrete: bool,
+) -> Result<Gramians> {
     check_triple(a, b, c)?;
     let (an, bn, cn) = (to_na(a), to_na(b), to_na(c));
     let s = real_schur(&an)?;
@@ -312,7 +365,11 @@ pub fn gramians(a: &Matrix<f64>, b: &Matrix<f64>, c: &Matrix<f64>, discrete: boo
     let at = an.transpose();
     let st = real_schur(&at)?;
     let wo = solve_with_schur(&at, &st, &(cn.transpose() * &cn), discrete)?;
-    Ok(Gramians { wc: wc.w, wo: wo.w, residuals: [wc.residual, wo.residual] })
+    Ok(Gramians {
+        wc: wc.w,
+        wo: wo.w,
+        residuals: [wc.residual, wo.residual],
+    })
 }
 
 #[cfg(test)]
@@ -335,16 +392,28 @@ mod tests {
     #[test]
     fn complex_poles_small_residual() {
         // Lightly damped pairs and a real pole: 2×2 Schur blocks (identity: the residual).
-        let a = m(5, 5, &[
-            -0.1, 3.0, 0.2, 0.0, 1.0, -3.0, -0.1, 0.0, 0.5, 0.0, 0.0, 0.0, -1.0, 10.0, 0.3, 0.0, 0.0, -10.0, -1.0, 0.0,
-            0.1, 0.2, 0.3, 0.4, -5.0,
-        ]);
+        let a = m(
+            5,
+            5,
+            &[
+                -0.1, 3.0, 0.2, 0.0, 1.0, -3.0, -0.1, 0.0, 0.5, 0.0, 0.0, 0.0, -1.0, 10.0, 0.3,
+                0.0, 0.0, -10.0, -1.0, 0.0, 0.1, 0.2, 0.3, 0.4, -5.0,
+            ],
+        );
         let b = m(5, 2, &[1.0, 0.0, 0.0, 1.0, 1.0, 1.0, -1.0, 0.5, 0.2, 0.0]);
         let c = m(1, 5, &[1.0, 2.0, 0.0, -1.0, 0.5]);
         for discrete in [false, true] {
-            let a = if discrete { from_na(&(to_na(&a) * 0.09)) } else { a.clone() };
+            let a = if discrete {
+                from_na(&(to_na(&a) * 0.09))
+            } else {
+                a.clone()
+            };
             let g = gramians(&a, &b, &c, discrete).unwrap();
-            assert!(g.residuals[0] < 1e-14 && g.residuals[1] < 1e-14, "{:?}", g.residuals);
+            assert!(
+                g.residuals[0] < 1e-14 && g.residuals[1] < 1e-14,
+                "{:?}",
+                g.residuals
+            );
         }
     }
 
@@ -353,9 +422,21 @@ mod tests {
         let a = m(2, 2, &[0.0, 1.0, -1.0, 0.0]); // poles ±j
         let b = m(2, 1, &[0.0, 1.0]);
         let c = m(1, 2, &[1.0, 0.0]);
-        assert!(matches!(gramians(&a, &b, &c, false), Err(ModelError::BadValue { arg: "a", .. })));
+        assert!(matches!(
+            gramians(&a, &b, &c, false),
+            Err(ModelError::BadValue { arg: "a", .. })
+        ));
         let a = m(2, 2, &[0.5, 0.0, 0.0, -1.0]);
-        assert!(matches!(gramians(&a, &b, &c, true), Err(ModelError::BadValue { arg: "a", .. })));
-        assert!(gramians(&Matrix::zeros(0, 0), &Matrix::zeros(0, 1), &Matrix::zeros(1, 0), false).is_ok());
+        assert!(matches!(
+            gramians(&a, &b, &c, true),
+            Err(ModelError::BadValue { arg: "a", .. })
+        ));
+        assert!(gramians(
+            &Matrix::zeros(0, 0),
+            &Matrix::zeros(0, 1),
+            &Matrix::zeros(1, 0),
+            false
+        )
+        .is_ok());
     }
 }

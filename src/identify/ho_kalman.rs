@@ -83,7 +83,14 @@ pub fn hankel_blocks(l: usize, p: usize, m: usize) -> (usize, usize) {
 }
 
 /// `markov` holds k matrices p × m, row-major, one after the other.
-pub fn realize_markov(markov: &[f64], k: usize, p: usize, m: usize, order: Option<usize>, tol: Option<f64>) -> Result<MarkovRealization> {
+pub fn realize_markov(
+    markov: &[f64],
+    k: usize,
+    p: usize,
+    m: usize,
+    order: Option<usize>,
+    tol: Option<f64>,
+) -> Result<MarkovRealization> {
     if k == 0 {
         return Err(ModelError::Shape {
             arg: "markov",
@@ -127,7 +134,12 @@ pub fn realize_markov(markov: &[f64], k: usize, p: usize, m: usize, order: Optio
     }
     if max_order == 0 {
         return Ok(MarkovRealization {
-            realization: StateSpace { a: Matrix::zeros(0, 0), b: Matrix::zeros(0, m), c: Matrix::zeros(p, 0), d },
+            realization: StateSpace {
+                a: Matrix::zeros(0, 0),
+                b: Matrix::zeros(0, m),
+                c: Matrix::zeros(p, 0),
+                d,
+            },
             singular_values: Vec::new(),
             order: 0,
             tol: tol.unwrap_or(0.0),
@@ -143,8 +155,12 @@ pub fn realize_markov(markov: &[f64], k: usize, p: usize, m: usize, order: Optio
     let root_sigma = 2f64.powi(half_exponent);
     let sigma = root_sigma * root_sigma;
     // H (block (i, j) = h_{i+j+1}) and the shifted H↑ (block (i, j) = h_{i+j+2}).
-    let hankel = Mat::from_fn(rows, cols, |x, y| h(x / p + y / m + 1, x % p, y % m) * sigma);
-    let shifted = Mat::from_fn(rows, cols, |x, y| h(x / p + y / m + 2, x % p, y % m) * sigma);
+    let hankel = Mat::from_fn(rows, cols, |x, y| {
+        h(x / p + y / m + 1, x % p, y % m) * sigma
+    });
+    let shifted = Mat::from_fn(rows, cols, |x, y| {
+        h(x / p + y / m + 2, x % p, y % m) * sigma
+    });
     let norm = hankel.norm_l2();
     let tol_scaled = match tol {
         Some(t) => t * sigma,
@@ -153,32 +169,63 @@ pub fn realize_markov(markov: &[f64], k: usize, p: usize, m: usize, order: Optio
             nh * nh * f64::EPSILON * norm
         }
     };
-    let svd = hankel.thin_svd().map_err(|_| ModelError::NoConvergence { routine: "the SVD of the Hankel matrix" })?;
+    let svd = hankel.thin_svd().map_err(|_| ModelError::NoConvergence {
+        routine: "the SVD of the Hankel matrix",
+    })?;
     let s: Vec<f64> = (0..max_order).map(|i| svd.S().column_vector()[i]).collect();
     let n = order.unwrap_or_else(|| s.iter().filter(|&&x| x > tol_scaled).count());
     if n > 0 && !(s[n - 1] > 0.0) {
         return Err(ModelError::BadValue {
             arg: "order",
-            detail: format!("order {n} exceeds the rank of the Hankel matrix (singular value {n} is zero)"),
+            detail: format!(
+                "order {n} exceeds the rank of the Hankel matrix (singular value {n} is zero)"
+            ),
         });
     }
     let (u, v) = (svd.U(), svd.V());
     let root: Vec<f64> = s[..n].iter().map(|x| x.sqrt()).collect();
     // C = first p rows of U_n Σ^(1/2); B = first m columns of Σ^(1/2) V_nᵀ.
-    let cm = Matrix::from_row_major(p, n, (0..p * n).map(|x| u[(x / n, x % n)] * root[x % n]).collect()).expect("p x n");
-    let bm = Matrix::from_row_major(n, m, (0..n * m).map(|x| root[x / m] * v[(x % m, x / m)]).collect()).expect("n x m");
+    let cm = Matrix::from_row_major(
+        p,
+        n,
+        (0..p * n)
+            .map(|x| u[(x / n, x % n)] * root[x % n])
+            .collect(),
+    )
+    .expect("p x n");
+    let bm = Matrix::from_row_major(
+        n,
+        m,
+        (0..n * m)
+            .map(|x| root[x / m] * v[(x % m, x / m)])
+            .collect(),
+    )
+    .expect("n x m");
     // A = Σ^(−1/2) U_nᵀ H↑ V_n Σ^(−1/2).
     let un = u.subcols(0, n);
     let vn = v.subcols(0, n);
     let core = un.transpose() * &shifted * vn;
-    let a = Matrix::from_row_major(n, n, (0..n * n).map(|x| core[(x / n, x % n)] / (root[x / n] * root[x % n])).collect())
-        .expect("n x n");
+    let a = Matrix::from_row_major(
+        n,
+        n,
+        (0..n * n)
+            .map(|x| core[(x / n, x % n)] / (root[x / n] * root[x % n]))
+            .collect(),
+    )
+    .expect("n x n");
     let (bm, cm) = (bm.map(|x| x / root_sigma), cm.map(|x| x / root_sigma));
     let s: Vec<f64> = s.iter().map(|x| x / sigma).collect();
     let tol = tol.unwrap_or(tol_scaled / sigma);
-    for (what, values) in [("A", a.as_slice()), ("B", bm.as_slice()), ("C", cm.as_slice()), ("Hankel singular values", &s[..])] {
+    for (what, values) in [
+        ("A", a.as_slice()),
+        ("B", bm.as_slice()),
+        ("C", cm.as_slice()),
+        ("Hankel singular values", &s[..]),
+    ] {
         if !values.iter().all(|x| x.is_finite()) {
-            return Err(ModelError::Overflow { what: format!("the realization's {what}") });
+            return Err(ModelError::Overflow {
+                what: format!("the realization's {what}"),
+            });
         }
     }
     Ok(MarkovRealization {
@@ -243,17 +290,30 @@ mod tests {
         let r = realize_markov(&data, k, 1, 2, None, None).unwrap();
         assert_eq!(r.order, 3);
         let again = markov_of(&r.realization, k);
-        let err = data.iter().zip(&again).map(|(x, y)| (x - y).abs()).fold(0.0, f64::max);
+        let err = data
+            .iter()
+            .zip(&again)
+            .map(|(x, y)| (x - y).abs())
+            .fold(0.0, f64::max);
         assert!(err < 1e-12, "Markov parameters differ by {err}");
     }
 
     #[test]
     fn too_few_parameters_and_bad_shapes() {
         let data = vec![0.0, 1.0, 0.5, 0.25];
-        assert!(matches!(realize_markov(&data, 4, 1, 1, Some(3), None), Err(ModelError::BadValue { arg: "order", .. })));
+        assert!(matches!(
+            realize_markov(&data, 4, 1, 1, Some(3), None),
+            Err(ModelError::BadValue { arg: "order", .. })
+        ));
         assert!(realize_markov(&data, 4, 1, 1, Some(1), None).is_ok());
-        assert!(matches!(realize_markov(&data, 3, 1, 1, None, None), Err(ModelError::Shape { .. })));
-        assert!(matches!(realize_markov(&[], 0, 1, 1, None, None), Err(ModelError::Shape { .. })));
+        assert!(matches!(
+            realize_markov(&data, 3, 1, 1, None, None),
+            Err(ModelError::Shape { .. })
+        ));
+        assert!(matches!(
+            realize_markov(&[], 0, 1, 1, None, None),
+            Err(ModelError::Shape { .. })
+        ));
         let only_d = realize_markov(&[2.0], 1, 1, 1, None, None).unwrap();
         assert_eq!(only_d.order, 0);
         assert_eq!(*only_d.realization.d.get(0, 0), 2.0);
@@ -262,7 +322,9 @@ mod tests {
     #[test]
     fn first_order_geometric_sequence() {
         // h_i = 0.5^(i-1): A = 0.5, C B = 1 (hand-worked).
-        let data: Vec<f64> = std::iter::once(0.0).chain((0..10).map(|i| 0.5f64.powi(i))).collect();
+        let data: Vec<f64> = std::iter::once(0.0)
+            .chain((0..10).map(|i| 0.5f64.powi(i)))
+            .collect();
         let r = realize_markov(&data, 11, 1, 1, None, None).unwrap();
         assert_eq!(r.order, 1);
         assert!((r.realization.a.get(0, 0) - 0.5).abs() < 1e-14);
@@ -294,7 +356,9 @@ mod range_tests {
             let a_rel = (big.realization.a.get(0, 0) - plain.realization.a.get(0, 0)).abs();
             assert!(a_rel < 1e-15, "{k}: {a_rel}");
             let bc = big.realization.b.get(0, 0) * big.realization.c.get(0, 0) / factor;
-            assert!((bc - plain.realization.b.get(0, 0) * plain.realization.c.get(0, 0)).abs() < 1e-15);
+            assert!(
+                (bc - plain.realization.b.get(0, 0) * plain.realization.c.get(0, 0)).abs() < 1e-15
+            );
             assert!(big.tol.is_finite() && big.singular_values.iter().all(|s| s.is_finite()));
         }
     }

@@ -7,21 +7,21 @@
 //! in the core is a bug; the last-resort guard reports it as `ModelError` rather than
 //! letting it abort the caller's kernel.
 
-use crate::error::ModelError as CoreError;
-use crate::matrix::Matrix;
-use crate::realize::{self, Form};
-use crate::realize::transfer_matrix::{self, BlockForm};
-use crate::recover::{self, Accuracy, Method};
-use crate::state_space::StateSpace;
 use crate::batch;
-use crate::krylov;
-use numpy::PyReadonlyArray3;
-use crate::structure::{kalman, minimal, similarity, staircase};
+use crate::error::ModelError as CoreError;
 use crate::gramian::{balance as gramian_balance, lyapunov};
 use crate::identify::ho_kalman;
+use crate::krylov;
+use crate::matrix::Matrix;
+use crate::realize::transfer_matrix::{self, BlockForm};
+use crate::realize::{self, Form};
+use crate::recover::{self, Accuracy, Method};
+use crate::state_space::StateSpace;
+use crate::structure::{kalman, minimal, similarity, staircase};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
+use numpy::PyReadonlyArray3;
 use numpy::{ndarray, PyArray, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
 use pyo3::exceptions::PyValueError;
 use pyo3::prelude::*;
@@ -120,10 +120,21 @@ fn model_from(
     c: &PyReadonlyArray2<'_, f64>,
     d: &PyReadonlyArray2<'_, f64>,
 ) -> PyResult<StateSpace<f64>> {
-    StateSpace::new(matrix_from(a), matrix_from(b), matrix_from(c), matrix_from(d)).map_err(to_py)
+    StateSpace::new(
+        matrix_from(a),
+        matrix_from(b),
+        matrix_from(c),
+        matrix_from(d),
+    )
+    .map_err(to_py)
 }
 
-type Quad<'py> = (Bound<'py, PyAny>, Bound<'py, PyAny>, Bound<'py, PyAny>, Bound<'py, PyAny>);
+type Quad<'py> = (
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+);
 
 #[pyfunction]
 fn realize_float<'py>(
@@ -152,7 +163,15 @@ fn realize_float<'py>(
         }
         None => None,
     };
-    Ok(((frozen2(py, ss.a)?, frozen2(py, ss.b)?, frozen2(py, ss.c)?, frozen2(py, ss.d)?), info))
+    Ok((
+        (
+            frozen2(py, ss.a)?,
+            frozen2(py, ss.b)?,
+            frozen2(py, ss.c)?,
+            frozen2(py, ss.d)?,
+        ),
+        info,
+    ))
 }
 
 #[pyfunction]
@@ -166,10 +185,16 @@ fn faddeev_leverrier_float<'py>(
     let method = parse_method(method)?;
     let a = matrix_from(&a);
     let n = a.rows();
-    let (coeffs, adj, acc) = run(py, move || recover::faddeev_leverrier_f64(&a, method, with_adjugates))?;
+    let (coeffs, adj, acc) = run(py, move || {
+        recover::faddeev_leverrier_f64(&a, method, with_adjugates)
+    })?;
     let flat: Vec<f64> = adj.into_iter().flat_map(|m| m.into_vec()).collect();
     let shape = if with_adjugates { [n, n, n] } else { [0, n, n] };
-    Ok((array_nd(py, coeffs, &[n + 1])?, array_nd(py, flat, &shape)?, accuracy_dict(py, &acc)?))
+    Ok((
+        array_nd(py, coeffs, &[n + 1])?,
+        array_nd(py, flat, &shape)?,
+        accuracy_dict(py, &acc)?,
+    ))
 }
 
 #[pyfunction]
@@ -185,7 +210,11 @@ fn transfer_function_float<'py>(
     let ss = model_from(&a, &b, &c, &d)?;
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
     let (num, den, acc) = run(py, move || recover::transfer_function_f64(&ss, method))?;
-    Ok((array_nd(py, num, &[p, m, n + 1])?, array_nd(py, den, &[n + 1])?, accuracy_dict(py, &acc)?))
+    Ok((
+        array_nd(py, num, &[p, m, n + 1])?,
+        array_nd(py, den, &[n + 1])?,
+        accuracy_dict(py, &acc)?,
+    ))
 }
 
 #[pyfunction]
@@ -201,13 +230,20 @@ fn controllability_matrix_float<'py>(
         if k.as_slice().iter().all(|v| v.is_finite()) {
             Ok(k)
         } else {
-            Err(CoreError::Overflow { what: "controllability matrix".into() })
+            Err(CoreError::Overflow {
+                what: "controllability matrix".into(),
+            })
         }
     })?;
     array2(py, m)
 }
 
-fn check_krylov_shapes<T: crate::scalar::Scalar>(a: &Matrix<T>, x: &Matrix<T>, arg: &'static str, side: &str) -> PyResult<()> {
+fn check_krylov_shapes<T: crate::scalar::Scalar>(
+    a: &Matrix<T>,
+    x: &Matrix<T>,
+    arg: &'static str,
+    side: &str,
+) -> PyResult<()> {
     if a.rows() != a.cols() {
         return Err(to_py(CoreError::Shape {
             arg: "a",
@@ -234,12 +270,19 @@ type ExactOut = (usize, usize, Vec<BigInt>, Vec<BigInt>);
 fn exact_matrix(arg: &'static str, x: ExactIn) -> PyResult<Matrix<BigRational>> {
     let (r, c, nums, dens) = x;
     if nums.len() != r * c || dens.len() != r * c {
-        return Err(to_py(CoreError::Shape { arg, expected: format!("{} entries", r * c), found: format!("{}", nums.len()) }));
+        return Err(to_py(CoreError::Shape {
+            arg,
+            expected: format!("{} entries", r * c),
+            found: format!("{}", nums.len()),
+        }));
     }
     let mut data = Vec::with_capacity(r * c);
     for (p, q) in nums.into_iter().zip(dens) {
         if q.is_zero() {
-            return Err(to_py(CoreError::BadValue { arg, detail: "a fraction has a zero denominator".into() }));
+            return Err(to_py(CoreError::BadValue {
+                arg,
+                detail: "a fraction has a zero denominator".into(),
+            }));
         }
         data.push(BigRational::new(p, q));
     }
@@ -252,7 +295,11 @@ fn exact_vector(arg: &'static str, x: ExactIn) -> PyResult<Vec<BigRational>> {
 
 fn exact_out(m: Matrix<BigRational>) -> ExactOut {
     let (r, c) = (m.rows(), m.cols());
-    let (nums, dens) = m.into_vec().into_iter().map(|q| (q.numer().clone(), q.denom().clone())).unzip();
+    let (nums, dens) = m
+        .into_vec()
+        .into_iter()
+        .map(|q| (q.numer().clone(), q.denom().clone()))
+        .unzip();
     (r, c, nums, dens)
 }
 
@@ -262,7 +309,12 @@ fn exact_out_vec(v: Vec<BigRational>) -> ExactOut {
 }
 
 #[pyfunction]
-fn realize_exact(py: Python<'_>, num: ExactIn, den: ExactIn, form: &str) -> PyResult<(ExactOut, ExactOut, ExactOut, ExactOut)> {
+fn realize_exact(
+    py: Python<'_>,
+    num: ExactIn,
+    den: ExactIn,
+    form: &str,
+) -> PyResult<(ExactOut, ExactOut, ExactOut, ExactOut)> {
     let form = parse_form(form)?;
     if form == Form::Modal {
         return Err(to_py(CoreError::BadOption {
@@ -273,7 +325,12 @@ fn realize_exact(py: Python<'_>, num: ExactIn, den: ExactIn, form: &str) -> PyRe
     }
     let (num, den) = (exact_vector("num", num)?, exact_vector("den", den)?);
     let ss = run(py, move || realize::realize_companion(&num, &den, form))?;
-    Ok((exact_out(ss.a), exact_out(ss.b), exact_out(ss.c), exact_out(ss.d)))
+    Ok((
+        exact_out(ss.a),
+        exact_out(ss.b),
+        exact_out(ss.c),
+        exact_out(ss.d),
+    ))
 }
 
 /// Largest order of the exact rational recursion when adjugates are returned (n⁴
@@ -288,28 +345,57 @@ fn check_exact_order(n: usize, with_adjugates: bool) -> PyResult<()> {
         (recover::MAX_RECURSION_ORDER, "exact rational arithmetic")
     };
     if n > limit {
-        return Err(to_py(CoreError::TooLarge { arg: "a", detail: format!("order {n} exceeds the limit {limit} of {what}") }));
+        return Err(to_py(CoreError::TooLarge {
+            arg: "a",
+            detail: format!("order {n} exceeds the limit {limit} of {what}"),
+        }));
     }
     Ok(())
 }
 
 #[pyfunction]
-fn faddeev_leverrier_exact(py: Python<'_>, a: ExactIn, with_adjugates: bool) -> PyResult<(ExactOut, Vec<ExactOut>)> {
+fn faddeev_leverrier_exact(
+    py: Python<'_>,
+    a: ExactIn,
+    with_adjugates: bool,
+) -> PyResult<(ExactOut, Vec<ExactOut>)> {
     check_exact_order(a.0, with_adjugates)?;
     let a = exact_matrix("a", a)?;
     if a.rows() != a.cols() {
-        return Err(to_py(CoreError::Shape { arg: "a", expected: "a square matrix".into(), found: format!("shape ({}, {})", a.rows(), a.cols()) }));
+        return Err(to_py(CoreError::Shape {
+            arg: "a",
+            expected: "a square matrix".into(),
+            found: format!("shape ({}, {})", a.rows(), a.cols()),
+        }));
     }
-    let (coeffs, adj) = run(py, move || recover::rational::faddeev_leverrier_rational(&a, with_adjugates))?;
-    Ok((exact_out_vec(coeffs), adj.into_iter().map(exact_out).collect()))
+    let (coeffs, adj) = run(py, move || {
+        recover::rational::faddeev_leverrier_rational(&a, with_adjugates)
+    })?;
+    Ok((
+        exact_out_vec(coeffs),
+        adj.into_iter().map(exact_out).collect(),
+    ))
 }
 
 #[pyfunction]
-fn transfer_function_exact(py: Python<'_>, a: ExactIn, b: ExactIn, c: ExactIn, d: ExactIn) -> PyResult<(ExactOut, ExactOut)> {
+fn transfer_function_exact(
+    py: Python<'_>,
+    a: ExactIn,
+    b: ExactIn,
+    c: ExactIn,
+    d: ExactIn,
+) -> PyResult<(ExactOut, ExactOut)> {
     check_exact_order(a.0, false)?;
-    let ss = StateSpace::new(exact_matrix("a", a)?, exact_matrix("b", b)?, exact_matrix("c", c)?, exact_matrix("d", d)?)
-        .map_err(to_py)?;
-    let (num, den) = run(py, move || recover::rational::transfer_function_rational(&ss))?;
+    let ss = StateSpace::new(
+        exact_matrix("a", a)?,
+        exact_matrix("b", b)?,
+        exact_matrix("c", c)?,
+        exact_matrix("d", d)?,
+    )
+    .map_err(to_py)?;
+    let (num, den) = run(py, move || {
+        recover::rational::transfer_function_rational(&ss)
+    })?;
     Ok((exact_out_vec(num), exact_out_vec(den)))
 }
 
@@ -360,12 +446,22 @@ fn realize_transfer_matrix_float<'py>(
         }));
     }
     let (num, den) = (entries_from(&num), entries_from(&den));
-    let (ss, info) = run(py, move || transfer_matrix::realize_transfer_matrix_f64(p, m, &num, &den, form, tol))?;
+    let (ss, info) = run(py, move || {
+        transfer_matrix::realize_transfer_matrix_f64(p, m, &num, &den, form, tol)
+    })?;
     let d = PyDict::new(py);
     d.set_item("block_orders", info.block_orders)?;
     d.set_item("merge_tol", info.merge_tol)?;
     d.set_item("denominator_residual", info.denominator_residual)?;
-    Ok(((frozen2(py, ss.a)?, frozen2(py, ss.b)?, frozen2(py, ss.c)?, frozen2(py, ss.d)?), d))
+    Ok((
+        (
+            frozen2(py, ss.a)?,
+            frozen2(py, ss.b)?,
+            frozen2(py, ss.c)?,
+            frozen2(py, ss.d)?,
+        ),
+        d,
+    ))
 }
 
 /// `num` and `den` hold one entry per row (p·m rows, row-major over (i, j)).
@@ -393,8 +489,15 @@ fn realize_transfer_matrix_exact(
         }));
     }
     let (num, den) = (rows(num), rows(den));
-    let ss = run(py, move || transfer_matrix::realize_transfer_matrix_exact(p, m, &num, &den, form))?;
-    Ok((exact_out(ss.a), exact_out(ss.b), exact_out(ss.c), exact_out(ss.d)))
+    let ss = run(py, move || {
+        transfer_matrix::realize_transfer_matrix_exact(p, m, &num, &den, form)
+    })?;
+    Ok((
+        exact_out(ss.a),
+        exact_out(ss.b),
+        exact_out(ss.c),
+        exact_out(ss.d),
+    ))
 }
 
 // ---- batches
@@ -418,7 +521,9 @@ fn realize_batch<'py>(
     }
     let num: Vec<f64> = num.as_array().iter().copied().collect();
     let den: Vec<f64> = den.as_array().iter().copied().collect();
-    let r = run(py, move || batch::realize_batch(&num, k, &den, n1, count, form))?;
+    let r = run(py, move || {
+        batch::realize_batch(&num, k, &den, n1, count, form)
+    })?;
     let n = r.n;
     Ok((
         array_nd(py, r.a, &[count, n, n])?,
@@ -441,7 +546,11 @@ fn transfer_function_batch<'py>(
     let (cc, p, nc) = c.as_array().dim();
     let (cd, pd, md) = d.as_array().dim();
     let shape_err = |arg: &'static str, expected: String, found: (usize, usize, usize)| {
-        Err(to_py(CoreError::Shape { arg, expected, found: format!("shape {found:?}") }))
+        Err(to_py(CoreError::Shape {
+            arg,
+            expected,
+            found: format!("shape {found:?}"),
+        }))
     };
     if n2 != n {
         return shape_err("a", format!("shape (N, n, n)"), (count, n, n2));
@@ -455,10 +564,16 @@ fn transfer_function_batch<'py>(
     if (cd, pd, md) != (count, p, m) {
         return shape_err("d", format!("shape ({count}, {p}, {m})"), (cd, pd, md));
     }
-    let own = |x: &PyReadonlyArray3<'py, f64>| -> Vec<f64> { x.as_array().iter().copied().collect() };
+    let own =
+        |x: &PyReadonlyArray3<'py, f64>| -> Vec<f64> { x.as_array().iter().copied().collect() };
     let (av, bv, cv, dv) = (own(&a), own(&b), own(&c), own(&d));
-    let t = run(py, move || batch::transfer_function_batch(&av, &bv, &cv, &dv, count, n, m, p))?;
-    Ok((array_nd(py, t.num, &[count, p, m, n + 1])?, array_nd(py, t.den, &[count, n + 1])?))
+    let t = run(py, move || {
+        batch::transfer_function_batch(&av, &bv, &cv, &dv, count, n, m, p)
+    })?;
+    Ok((
+        array_nd(py, t.num, &[count, p, m, n + 1])?,
+        array_nd(py, t.den, &[count, n + 1])?,
+    ))
 }
 
 // ---- structure
@@ -487,7 +602,17 @@ fn staircase_out<'py>(py: Python<'py>, s: staircase::Staircase) -> PyResult<Stai
         sv.push(array_nd(py, step.singular_values, &[k])?);
         kept.push(step.kept);
     }
-    Ok((array2(py, s.a)?, array2(py, s.b)?, c, array2(py, s.q)?, s.blocks, s.rank, sv, kept, s.tol))
+    Ok((
+        array2(py, s.a)?,
+        array2(py, s.b)?,
+        c,
+        array2(py, s.q)?,
+        s.blocks,
+        s.rank,
+        sv,
+        kept,
+        s.tol,
+    ))
 }
 
 #[pyfunction]
@@ -499,8 +624,14 @@ fn controllability_staircase<'py>(
     c: Option<PyReadonlyArray2<'py, f64>>,
     tol: Option<f64>,
 ) -> PyResult<StaircaseOut<'py>> {
-    let (a, b, c) = (matrix_from(&a), matrix_from(&b), c.as_ref().map(matrix_from));
-    let s = run(py, move || staircase::controllability_staircase(&a, &b, c.as_ref(), tol))?;
+    let (a, b, c) = (
+        matrix_from(&a),
+        matrix_from(&b),
+        c.as_ref().map(matrix_from),
+    );
+    let s = run(py, move || {
+        staircase::controllability_staircase(&a, &b, c.as_ref(), tol)
+    })?;
     staircase_out(py, s)
 }
 
@@ -513,8 +644,14 @@ fn observability_staircase<'py>(
     c: PyReadonlyArray2<'py, f64>,
     tol: Option<f64>,
 ) -> PyResult<StaircaseOut<'py>> {
-    let (a, b, c) = (matrix_from(&a), b.as_ref().map(matrix_from), matrix_from(&c));
-    let s = run(py, move || staircase::observability_staircase(&a, b.as_ref(), &c, tol))?;
+    let (a, b, c) = (
+        matrix_from(&a),
+        b.as_ref().map(matrix_from),
+        matrix_from(&c),
+    );
+    let s = run(py, move || {
+        staircase::observability_staircase(&a, b.as_ref(), &c, tol)
+    })?;
     staircase_out(py, s)
 }
 
@@ -532,7 +669,12 @@ fn minimal_realization<'py>(
     let m = run(py, move || minimal::minimal_realization(&ss, tol))?;
     let r = m.realization;
     Ok((
-        (array2(py, r.a)?, array2(py, r.b)?, array2(py, r.c)?, array2(py, r.d)?),
+        (
+            array2(py, r.a)?,
+            array2(py, r.b)?,
+            array2(py, r.c)?,
+            array2(py, r.d)?,
+        ),
         staircase_out(py, m.controllability)?,
         staircase_out(py, m.observability)?,
     ))
@@ -552,7 +694,12 @@ fn kalman_decomposition<'py>(
     let k = run(py, move || kalman::kalman_decomposition(&ss, tol))?;
     let r = k.realization;
     Ok((
-        (array2(py, r.a)?, array2(py, r.b)?, array2(py, r.c)?, array2(py, r.d)?),
+        (
+            array2(py, r.a)?,
+            array2(py, r.b)?,
+            array2(py, r.c)?,
+            array2(py, r.d)?,
+        ),
         array2(py, k.t)?,
         k.sizes,
         k.condition,
@@ -564,8 +711,18 @@ fn kalman_decomposition<'py>(
 #[pyo3(signature = (r1, r2, tol))]
 fn similarity_transform<'py>(
     py: Python<'py>,
-    r1: (PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>),
-    r2: (PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>, PyReadonlyArray2<'py, f64>),
+    r1: (
+        PyReadonlyArray2<'py, f64>,
+        PyReadonlyArray2<'py, f64>,
+        PyReadonlyArray2<'py, f64>,
+        PyReadonlyArray2<'py, f64>,
+    ),
+    r2: (
+        PyReadonlyArray2<'py, f64>,
+        PyReadonlyArray2<'py, f64>,
+        PyReadonlyArray2<'py, f64>,
+        PyReadonlyArray2<'py, f64>,
+    ),
     tol: Option<f64>,
 ) -> PyResult<(Bound<'py, PyAny>, [f64; 4], f64)> {
     let s1 = model_from(&r1.0, &r1.1, &r1.2, &r1.3)?;
@@ -586,11 +743,18 @@ fn realize_markov<'py>(
 ) -> PyResult<(Quad<'py>, Bound<'py, PyAny>, usize, f64, (usize, usize))> {
     let (k, p, m) = markov.as_array().dim();
     let data: Vec<f64> = markov.as_array().iter().copied().collect();
-    let r = run(py, move || ho_kalman::realize_markov(&data, k, p, m, order, tol))?;
+    let r = run(py, move || {
+        ho_kalman::realize_markov(&data, k, p, m, order, tol)
+    })?;
     let s = r.realization;
     let count = r.singular_values.len();
     Ok((
-        (array2(py, s.a)?, array2(py, s.b)?, array2(py, s.c)?, array2(py, s.d)?),
+        (
+            array2(py, s.a)?,
+            array2(py, s.b)?,
+            array2(py, s.c)?,
+            array2(py, s.d)?,
+        ),
         array_nd(py, r.singular_values, &[count])?,
         r.order,
         r.tol,
@@ -609,7 +773,11 @@ fn gramians<'py>(
 ) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>, [f64; 2])> {
     let (a, b, c) = (matrix_from(&a), matrix_from(&b), matrix_from(&c));
     let g = run(py, move || lyapunov::gramians(&a, &b, &c, discrete))?;
-    Ok((array2(py, lyapunov::from_na(&g.wc))?, array2(py, lyapunov::from_na(&g.wo))?, g.residuals))
+    Ok((
+        array2(py, lyapunov::from_na(&g.wc))?,
+        array2(py, lyapunov::from_na(&g.wo))?,
+        g.residuals,
+    ))
 }
 
 #[pyfunction]
@@ -622,7 +790,9 @@ fn hankel_singular_values<'py>(
     discrete: bool,
 ) -> PyResult<Bound<'py, PyAny>> {
     let (a, b, c) = (matrix_from(&a), matrix_from(&b), matrix_from(&c));
-    let s = run(py, move || gramian_balance::hankel_singular_values(&a, &b, &c, discrete))?;
+    let s = run(py, move || {
+        gramian_balance::hankel_singular_values(&a, &b, &c, discrete)
+    })?;
     let n = s.len();
     array_nd(py, s, &[n])
 }
@@ -639,11 +809,18 @@ fn balanced_realization<'py>(
     discrete: bool,
 ) -> PyResult<(Quad<'py>, Bound<'py, PyAny>, f64, [f64; 2])> {
     let ss = model_from(&a, &b, &c, &d)?;
-    let r = run(py, move || gramian_balance::balanced_realization(&ss, order, discrete))?;
+    let r = run(py, move || {
+        gramian_balance::balanced_realization(&ss, order, discrete)
+    })?;
     let s = r.realization;
     let n = r.hankel_singular_values.len();
     Ok((
-        (array2(py, s.a)?, array2(py, s.b)?, array2(py, s.c)?, array2(py, s.d)?),
+        (
+            array2(py, s.a)?,
+            array2(py, s.b)?,
+            array2(py, s.c)?,
+            array2(py, s.d)?,
+        ),
         array_nd(py, r.hankel_singular_values, &[n])?,
         r.error_bound,
         r.residuals,

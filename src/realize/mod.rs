@@ -20,10 +20,10 @@ pub mod modal;
 pub mod transfer_matrix;
 
 use crate::error::{ModelError, Result};
+use crate::matrix::Matrix;
 use crate::poly::{split_proper, strip_leading_zeros, ProperSplit};
 use crate::scalar::Scalar;
 use crate::state_space::StateSpace;
-use crate::matrix::Matrix;
 use std::str::FromStr;
 
 /// The canonical forms on offer.
@@ -69,7 +69,11 @@ impl FromStr for Form {
             "observability" => Form::Observability,
             "modal" => Form::Modal,
             other => {
-                return Err(ModelError::BadOption { arg: "form", found: other.to_string(), allowed: FORM_NAMES })
+                return Err(ModelError::BadOption {
+                    arg: "form",
+                    found: other.to_string(),
+                    allowed: FORM_NAMES,
+                })
             }
         })
     }
@@ -81,13 +85,20 @@ impl FromStr for Form {
 /// # Errors
 /// Those of [`split_proper`]; `BadOption` for `Form::Modal` (use [`modal::realize_modal`]).
 pub fn realize_companion<T: Scalar>(num: &[T], den: &[T], form: Form) -> Result<StateSpace<T>> {
-    check_order(strip_leading_zeros(den).len().saturating_sub(1), MAX_ORDER, "a realization")?;
+    check_order(
+        strip_leading_zeros(den).len().saturating_sub(1),
+        MAX_ORDER,
+        "a realization",
+    )?;
     let split = split_proper(num, den)?;
     companion_from_split(&split, form)
 }
 
 /// The companion form of an already split transfer function.
-pub fn companion_from_split<T: Scalar>(split: &ProperSplit<T>, form: Form) -> Result<StateSpace<T>> {
+pub fn companion_from_split<T: Scalar>(
+    split: &ProperSplit<T>,
+    form: Form,
+) -> Result<StateSpace<T>> {
     Ok(match form {
         Form::ControllableCanonical => controllable::controllable_canonical(split),
         Form::ObservableCanonical => controllable::controllable_canonical(split).dual(),
@@ -106,14 +117,34 @@ pub fn companion_from_split<T: Scalar>(split: &ProperSplit<T>, form: Form) -> Re
 }
 
 /// Realize in float64, any form including `Modal`; checks finiteness first.
-pub fn realize_f64(num: &[f64], den: &[f64], form: Form) -> Result<(StateSpace<f64>, Option<modal::ModalInfo>)> {
+pub fn realize_f64(
+    num: &[f64],
+    den: &[f64],
+    form: Form,
+) -> Result<(StateSpace<f64>, Option<modal::ModalInfo>)> {
     crate::error::require_finite("num", num)?;
     crate::error::require_finite("den", den)?;
     let order = strip_leading_zeros(den).len().saturating_sub(1);
-    check_order(order, if form == Form::Modal { MAX_MODAL_ORDER } else { MAX_ORDER }, "a realization in this form")?;
+    check_order(
+        order,
+        if form == Form::Modal {
+            MAX_MODAL_ORDER
+        } else {
+            MAX_ORDER
+        },
+        "a realization in this form",
+    )?;
     let split = split_proper(num, den)?;
-    if split.den.iter().chain(&split.strict_num).any(|v| !v.is_finite()) || !split.direct.is_finite() {
-        return Err(ModelError::Overflow { what: "normalising num/den by the leading denominator coefficient".into() });
+    if split
+        .den
+        .iter()
+        .chain(&split.strict_num)
+        .any(|v| !v.is_finite())
+        || !split.direct.is_finite()
+    {
+        return Err(ModelError::Overflow {
+            what: "normalising num/den by the leading denominator coefficient".into(),
+        });
     }
     let (ss, info) = if form == Form::Modal {
         let (ss, info) = modal::modal_from_split(&split)?;
@@ -122,8 +153,13 @@ pub fn realize_f64(num: &[f64], den: &[f64], form: Form) -> Result<(StateSpace<f
         (companion_from_split(&split, form)?, None)
     };
     // The Markov parameters of the controllability forms can overflow from finite data.
-    if [&ss.a, &ss.b, &ss.c, &ss.d].iter().any(|m| m.as_slice().iter().any(|v| !v.is_finite())) {
-        return Err(ModelError::Overflow { what: format!("the {form:?} realization of num/den") });
+    if [&ss.a, &ss.b, &ss.c, &ss.d]
+        .iter()
+        .any(|m| m.as_slice().iter().any(|v| !v.is_finite()))
+    {
+        return Err(ModelError::Overflow {
+            what: format!("the {form:?} realization of num/den"),
+        });
     }
     Ok((ss, info))
 }

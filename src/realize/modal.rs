@@ -38,8 +38,8 @@ use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
 use crate::poly::ProperSplit;
 use crate::state_space::StateSpace;
-use faer::prelude::*;
 use faer::c64;
+use faer::prelude::*;
 
 /// What the modal decision was made on.
 #[derive(Debug, Clone, PartialEq)]
@@ -53,17 +53,32 @@ pub struct ModalInfo {
 pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, ModalInfo)> {
     let n = split.order();
     if n == 0 {
-        let info = ModalInfo { eigenvector_condition: 1.0, condition_limit: 1.0 / f64::EPSILON.sqrt() };
+        let info = ModalInfo {
+            eigenvector_condition: 1.0,
+            condition_limit: 1.0 / f64::EPSILON.sqrt(),
+        };
         return Ok((super::gain_only(&split.direct), info));
     }
     let companion = super::controllable::controllable_canonical(split);
     let (balanced, _scale) = crate::balance::balance(&companion.a);
     let eig = Mat::from_fn(n, n, |i, j| *balanced.get(i, j))
         .eigen()
-        .map_err(|_| ModelError::NoConvergence { routine: "the eigenvalue iteration of the modal form" })?;
-    let values: Vec<(f64, f64)> = eig.S().column_vector().iter().map(|z| (z.re, z.im)).collect();
-    if values.iter().any(|(re, im)| !re.is_finite() || !im.is_finite()) {
-        return Err(ModelError::NoConvergence { routine: "the eigenvalue iteration of the modal form" });
+        .map_err(|_| ModelError::NoConvergence {
+            routine: "the eigenvalue iteration of the modal form",
+        })?;
+    let values: Vec<(f64, f64)> = eig
+        .S()
+        .column_vector()
+        .iter()
+        .map(|z| (z.re, z.im))
+        .collect();
+    if values
+        .iter()
+        .any(|(re, im)| !re.is_finite() || !im.is_finite())
+    {
+        return Err(ModelError::NoConvergence {
+            routine: "the eigenvalue iteration of the modal form",
+        });
     }
 
     // One representative per real pole or conjugate pair, in the documented order.
@@ -80,7 +95,9 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
             columns.push(v.iter().map(|z| z.0).collect());
         } else {
             if at + 1 >= n {
-                return Err(ModelError::NoConvergence { routine: "the eigenvalue pairing of the modal form" });
+                return Err(ModelError::NoConvergence {
+                    routine: "the eigenvalue pairing of the modal form",
+                });
             }
             a.set(at, at, sigma);
             a.set(at, at + 1, omega);
@@ -91,7 +108,9 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
         }
     }
     if columns.len() != n {
-        return Err(ModelError::NoConvergence { routine: "the eigenvalue pairing of the modal form" });
+        return Err(ModelError::NoConvergence {
+            routine: "the eigenvalue pairing of the modal form",
+        });
     }
 
     // Decide on the balanced basis with every (complex) eigenvector of unit norm: [v_r, v_i]
@@ -100,10 +119,19 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
     let basis = Mat::from_fn(n, n, |i, j| columns[j][i]);
     let sv = basis
         .singular_values()
-        .map_err(|_| ModelError::NoConvergence { routine: "the SVD of the modal basis" })?;
-    let condition = if sv[n - 1] > 0.0 { sv[0] / sv[n - 1] } else { f64::INFINITY };
+        .map_err(|_| ModelError::NoConvergence {
+            routine: "the SVD of the modal basis",
+        })?;
+    let condition = if sv[n - 1] > 0.0 {
+        sv[0] / sv[n - 1]
+    } else {
+        f64::INFINITY
+    };
     let limit = 1.0 / (n as f64 * f64::EPSILON.sqrt());
-    let info = ModalInfo { eigenvector_condition: condition, condition_limit: limit };
+    let info = ModalInfo {
+        eigenvector_condition: condition,
+        condition_limit: limit,
+    };
     if !(condition <= limit) {
         let pole = closest_pair(&values);
         return Err(ModelError::NoModalForm {
@@ -125,9 +153,18 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
     let mut at = 0;
     for &k in &chosen {
         let lambda = all[k];
-        let derivative = all.iter().enumerate().filter(|&(j, _)| j != k).fold(c64::new(1.0, 0.0), |acc, (_, &mu)| acc * (lambda - mu));
+        let derivative = all
+            .iter()
+            .enumerate()
+            .filter(|&(j, _)| j != k)
+            .fold(c64::new(1.0, 0.0), |acc, (_, &mu)| acc * (lambda - mu));
         let beta = c64::new(1.0, 0.0) / derivative;
-        let gain = split.strict_num.iter().fold(c64::new(0.0, 0.0), |acc, &ci| acc * lambda + c64::new(ci, 0.0));
+        let gain = split
+            .strict_num
+            .iter()
+            .fold(c64::new(0.0, 0.0), |acc, &ci| {
+                acc * lambda + c64::new(ci, 0.0)
+            });
         let (bs, cs): (Vec<f64>, Vec<f64>) = if values[k].1 == 0.0 {
             (vec![beta.re], vec![gain.re])
         } else {
@@ -135,8 +172,15 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
             (vec![2.0 * beta.re, -2.0 * beta.im], vec![gain.re, gain.im])
         };
         // Diagonal rescaling of the mode (the transfer function keeps B·C) so |B| = |C|.
-        let (nb, nc) = (bs.iter().map(|x| x * x).sum::<f64>().sqrt(), cs.iter().map(|x| x * x).sum::<f64>().sqrt());
-        let g = if nb > 0.0 && nc > 0.0 { (nc / nb).sqrt() } else { 1.0 };
+        let (nb, nc) = (
+            bs.iter().map(|x| x * x).sum::<f64>().sqrt(),
+            cs.iter().map(|x| x * x).sum::<f64>().sqrt(),
+        );
+        let g = if nb > 0.0 && nc > 0.0 {
+            (nc / nb).sqrt()
+        } else {
+            1.0
+        };
         for (i, (bv, cv)) in bs.iter().zip(&cs).enumerate() {
             b_data[at + i] = if zero_numerator { 0.0 } else { bv * g };
             c_data[at + i] = cv / g;
@@ -145,10 +189,24 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
     }
     let b = Matrix::from_row_major(n, 1, b_data).expect("n x 1");
     let c = Matrix::from_row_major(1, n, c_data).expect("1 x n");
-    if b.as_slice().iter().chain(c.as_slice()).any(|v| !v.is_finite()) {
-        return Err(ModelError::Overflow { what: "the modal B and C".into() });
+    if b.as_slice()
+        .iter()
+        .chain(c.as_slice())
+        .any(|v| !v.is_finite())
+    {
+        return Err(ModelError::Overflow {
+            what: "the modal B and C".into(),
+        });
     }
-    Ok((StateSpace { a, b, c, d: companion.d }, info))
+    Ok((
+        StateSpace {
+            a,
+            b,
+            c,
+            d: companion.d,
+        },
+        info,
+    ))
 }
 
 /// Sorts the chosen poles by ascending real part, ties by ascending frequency. Real parts
@@ -156,7 +214,10 @@ pub fn modal_from_split(split: &ProperSplit<f64>) -> Result<(StateSpace<f64>, Mo
 /// not decide the documented order of, e.g., −1, −1 ± 0.5j, −1 ± 2j.
 fn order_modes(chosen: &mut [usize], values: &[(f64, f64)]) {
     chosen.sort_by(|&x, &y| values[x].0.total_cmp(&values[y].0));
-    let scale = values.iter().map(|(re, im)| re.hypot(*im)).fold(0.0, f64::max);
+    let scale = values
+        .iter()
+        .map(|(re, im)| re.hypot(*im))
+        .fold(0.0, f64::max);
     let tol = 64.0 * values.len() as f64 * f64::EPSILON * scale;
     let mut start = 0;
     while start < chosen.len() {
@@ -182,10 +243,16 @@ fn normalised_eigenvector(eig: &faer::linalg::solvers::Eigen<f64>, k: usize) -> 
             big_abs = m;
         }
     }
-    let norm = col.iter().map(|z| z.0 * z.0 + z.1 * z.1).sum::<f64>().sqrt();
+    let norm = col
+        .iter()
+        .map(|z| z.0 * z.0 + z.1 * z.1)
+        .sum::<f64>()
+        .sqrt();
     // Multiply by conj(phase of the largest component) / norm.
     let (pr, pi) = (col[big].0 / big_abs, -col[big].1 / big_abs);
-    col.iter().map(|z| ((z.0 * pr - z.1 * pi) / norm, (z.0 * pi + z.1 * pr) / norm)).collect()
+    col.iter()
+        .map(|z| ((z.0 * pr - z.1 * pi) / norm, (z.0 * pi + z.1 * pr) / norm))
+        .collect()
 }
 
 /// The two poles closest to each other, for the error message.
@@ -199,7 +266,13 @@ fn closest_pair(values: &[(f64, f64)]) -> String {
             }
         }
     }
-    let fmt = |(re, im): (f64, f64)| if im == 0.0 { format!("{re:.6e}") } else { format!("{re:.6e}{im:+.6e}j") };
+    let fmt = |(re, im): (f64, f64)| {
+        if im == 0.0 {
+            format!("{re:.6e}")
+        } else {
+            format!("{re:.6e}{im:+.6e}j")
+        }
+    };
     if values.len() < 2 {
         return "(none)".into();
     }

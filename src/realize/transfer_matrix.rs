@@ -91,7 +91,11 @@ impl FromStr for BlockForm {
         match s {
             "block_controller" => Ok(BlockForm::BlockController),
             "block_observer" => Ok(BlockForm::BlockObserver),
-            other => Err(ModelError::BadOption { arg: "form", found: other.to_string(), allowed: BLOCK_FORM_NAMES }),
+            other => Err(ModelError::BadOption {
+                arg: "form",
+                found: other.to_string(),
+                allowed: BLOCK_FORM_NAMES,
+            }),
         }
     }
 }
@@ -115,19 +119,35 @@ struct GroupDenominator<T> {
 }
 
 /// Splits every entry (row-major p × m); `None` marks a zero numerator.
-fn split_entries<T: Scalar>(p: usize, m: usize, num: &[Vec<T>], den: &[Vec<T>]) -> Result<Vec<Option<ProperSplit<T>>>> {
+fn split_entries<T: Scalar>(
+    p: usize,
+    m: usize,
+    num: &[Vec<T>],
+    den: &[Vec<T>],
+) -> Result<Vec<Option<ProperSplit<T>>>> {
     if num.len() != p * m {
-        return Err(ModelError::Shape { arg: "num", expected: format!("{} entries ({p} x {m})", p * m), found: format!("{}", num.len()) });
+        return Err(ModelError::Shape {
+            arg: "num",
+            expected: format!("{} entries ({p} x {m})", p * m),
+            found: format!("{}", num.len()),
+        });
     }
     if den.len() != p * m {
-        return Err(ModelError::Shape { arg: "den", expected: format!("{} entries ({p} x {m})", p * m), found: format!("{}", den.len()) });
+        return Err(ModelError::Shape {
+            arg: "den",
+            expected: format!("{} entries ({p} x {m})", p * m),
+            found: format!("{}", den.len()),
+        });
     }
     let mut out = Vec::with_capacity(p * m);
     for (k, (nk, dk)) in num.iter().zip(den).enumerate() {
         let (i, j) = (k / m, k % m);
         let d = strip_leading_zeros(dk);
         if d.is_empty() {
-            return Err(ModelError::BadValue { arg: "den", detail: format!("entry ({i}, {j}) is empty or identically zero") });
+            return Err(ModelError::BadValue {
+                arg: "den",
+                detail: format!("entry ({i}, {j}) is empty or identically zero"),
+            });
         }
         let n = strip_leading_zeros(nk);
         if n.is_empty() {
@@ -145,7 +165,11 @@ fn split_entries<T: Scalar>(p: usize, m: usize, num: &[Vec<T>], den: &[Vec<T>]) 
                 ),
             });
         }
-        super::check_order(d.len() - 1, super::MAX_ORDER, "a transfer-matrix realization")?;
+        super::check_order(
+            d.len() - 1,
+            super::MAX_ORDER,
+            "a transfer-matrix realization",
+        )?;
         out.push(Some(split_proper(n, d)?));
     }
     Ok(out)
@@ -154,7 +178,11 @@ fn split_entries<T: Scalar>(p: usize, m: usize, num: &[Vec<T>], den: &[Vec<T>]) 
 /// Refuses, before any root finding or Euclid step, requests whose order must exceed
 /// [`super::MAX_ORDER`] (each group's order is at least its largest denominator degree) or
 /// whose root merging would compare more than [`MAX_GROUP_ROOTS`] roots.
-fn check_sizes<T: Scalar>(rows: usize, cols: usize, splits: &[Option<ProperSplit<T>>]) -> Result<()> {
+fn check_sizes<T: Scalar>(
+    rows: usize,
+    cols: usize,
+    splits: &[Option<ProperSplit<T>>],
+) -> Result<()> {
     let mut lower = 0;
     for j in 0..cols {
         let degrees = (0..rows).filter_map(|i| splits[i * cols + j].as_ref().map(|s| s.order()));
@@ -186,12 +214,22 @@ fn transposed<T: Clone>(p: usize, m: usize, x: &[T]) -> Vec<T> {
 }
 
 /// Column j of the row-major p × m entry list.
-fn column<T: Clone>(p: usize, m: usize, x: &[Option<ProperSplit<T>>], j: usize) -> Vec<Option<ProperSplit<T>>> {
+fn column<T: Clone>(
+    p: usize,
+    m: usize,
+    x: &[Option<ProperSplit<T>>],
+    j: usize,
+) -> Vec<Option<ProperSplit<T>>> {
     (0..p).map(|i| x[i * m + j].clone()).collect()
 }
 
 /// The block controller realization, given each column's common denominator.
-fn assemble<T: Scalar>(p: usize, m: usize, splits: &[Option<ProperSplit<T>>], groups: &[GroupDenominator<T>]) -> Result<StateSpace<T>> {
+fn assemble<T: Scalar>(
+    p: usize,
+    m: usize,
+    splits: &[Option<ProperSplit<T>>],
+    groups: &[GroupDenominator<T>],
+) -> Result<StateSpace<T>> {
     let orders: Vec<usize> = groups.iter().map(|g| g.lcm.len() - 1).collect();
     let n: usize = orders.iter().sum();
     super::check_order(n, super::MAX_ORDER, "a transfer-matrix realization")?;
@@ -213,7 +251,9 @@ fn assemble<T: Scalar>(p: usize, m: usize, splits: &[Option<ProperSplit<T>>], gr
             b.set(offset + nj - 1, j, T::one());
         }
         for i in 0..p {
-            let (Some(split), Some(q)) = (&splits[i * m + j], &g.quotients[i]) else { continue };
+            let (Some(split), Some(q)) = (&splits[i * m + j], &g.quotients[i]) else {
+                continue;
+            };
             d.set(i, j, split.direct.clone());
             let row = poly_lcm::mul(&split.strict_num, q);
             // `row` has length nj (or is empty for a constant entry); highest power first.
@@ -228,13 +268,22 @@ fn assemble<T: Scalar>(p: usize, m: usize, splits: &[Option<ProperSplit<T>>], gr
 
 // ---------------------------------------------------------------- exact rationals
 
-fn exact_group(members: &[Option<ProperSplit<BigRational>>]) -> Result<GroupDenominator<BigRational>> {
+fn exact_group(
+    members: &[Option<ProperSplit<BigRational>>],
+) -> Result<GroupDenominator<BigRational>> {
     let mut lcm = vec![BigRational::from_integer(1.into())];
     for s in members.iter().flatten() {
         lcm = poly_lcm::lcm(&lcm, &s.den);
-        super::check_order(lcm.len() - 1, super::MAX_ORDER, "a transfer-matrix realization")?;
+        super::check_order(
+            lcm.len() - 1,
+            super::MAX_ORDER,
+            "a transfer-matrix realization",
+        )?;
     }
-    let quotients = members.iter().map(|s| s.as_ref().map(|s| poly_lcm::div_rem(&lcm, &s.den).0)).collect();
+    let quotients = members
+        .iter()
+        .map(|s| s.as_ref().map(|s| poly_lcm::div_rem(&lcm, &s.den).0))
+        .collect();
     Ok(GroupDenominator { lcm, quotients })
 }
 
@@ -255,9 +304,15 @@ pub fn realize_transfer_matrix_exact(
         BlockForm::BlockObserver => (m, p, transposed(p, m, &splits)),
     };
     check_sizes(rows, cols, &splits)?;
-    let groups = (0..cols).map(|j| exact_group(&column(rows, cols, &splits, j))).collect::<Result<Vec<_>>>()?;
+    let groups = (0..cols)
+        .map(|j| exact_group(&column(rows, cols, &splits, j)))
+        .collect::<Result<Vec<_>>>()?;
     let ss = assemble(rows, cols, &splits, &groups)?;
-    Ok(if form == BlockForm::BlockObserver { ss.dual() } else { ss })
+    Ok(if form == BlockForm::BlockObserver {
+        ss.dual()
+    } else {
+        ss
+    })
 }
 
 // ---------------------------------------------------------------- float64
@@ -265,7 +320,9 @@ pub fn realize_transfer_matrix_exact(
 /// Roots of a monic polynomial: exact zeros first, then the companion eigenvalues, complex
 /// pairs made exactly conjugate (each root of the upper half plane followed by its conjugate).
 fn roots(monic: &[f64]) -> Result<Vec<(f64, f64)>> {
-    let fail = ModelError::NoConvergence { routine: "the eigenvalue iteration for the denominator roots" };
+    let fail = ModelError::NoConvergence {
+        routine: "the eigenvalue iteration for the denominator roots",
+    };
     let zeros = monic.iter().rev().take_while(|c| **c == 0.0).count();
     let rest = &monic[..monic.len() - zeros];
     let mut out = vec![(0.0, 0.0); zeros];
@@ -281,9 +338,19 @@ fn roots(monic: &[f64]) -> Result<Vec<(f64, f64)>> {
             comp.set(n - 1, k, -rest[n - k]);
         }
         let (bal, _) = crate::balance::balance(&comp);
-        let eig = Mat::from_fn(n, n, |i, j| *bal.get(i, j)).eigen().map_err(|_| fail.clone())?;
-        let values: Vec<(f64, f64)> = eig.S().column_vector().iter().map(|z| (z.re, z.im)).collect();
-        if values.iter().any(|(re, im)| !re.is_finite() || !im.is_finite()) {
+        let eig = Mat::from_fn(n, n, |i, j| *bal.get(i, j))
+            .eigen()
+            .map_err(|_| fail.clone())?;
+        let values: Vec<(f64, f64)> = eig
+            .S()
+            .column_vector()
+            .iter()
+            .map(|z| (z.re, z.im))
+            .collect();
+        if values
+            .iter()
+            .any(|(re, im)| !re.is_finite() || !im.is_finite())
+        {
             return Err(fail);
         }
         let upper = values.iter().filter(|v| v.1 > 0.0).count();
@@ -311,13 +378,24 @@ fn find(parent: &mut [usize], mut x: usize) -> usize {
     x
 }
 
-fn float_group(members: &[Option<ProperSplit<f64>>], tol: f64) -> Result<(GroupDenominator<f64>, f64)> {
-    let present: Vec<usize> = (0..members.len()).filter(|&i| members[i].is_some()).collect();
+fn float_group(
+    members: &[Option<ProperSplit<f64>>],
+    tol: f64,
+) -> Result<(GroupDenominator<f64>, f64)> {
+    let present: Vec<usize> = (0..members.len())
+        .filter(|&i| members[i].is_some())
+        .collect();
     let den = |i: usize| &members[i].as_ref().expect("present").den;
     // One shared denominator: place its coefficients as they are.
     if present.windows(2).all(|w| den(w[0]) == den(w[1])) {
-        let lcm = present.first().map(|&i| den(i).clone()).unwrap_or_else(|| vec![1.0]);
-        let quotients = members.iter().map(|s| s.as_ref().map(|_| vec![1.0])).collect();
+        let lcm = present
+            .first()
+            .map(|&i| den(i).clone())
+            .unwrap_or_else(|| vec![1.0]);
+        let quotients = members
+            .iter()
+            .map(|s| s.as_ref().map(|_| vec![1.0]))
+            .collect();
         return Ok((GroupDenominator { lcm, quotients }, 0.0));
     }
     // All roots: (member, value, index of its conjugate).
@@ -386,19 +464,34 @@ fn float_group(members: &[Option<ProperSplit<f64>>], tol: f64) -> Result<(GroupD
         }
         let max = counts.iter().copied().max().unwrap_or(0);
         clusters.push(Cluster {
-            centre: if self_conjugate { (mean_re, 0.0) } else { (mean_re, mean_im) },
+            centre: if self_conjugate {
+                (mean_re, 0.0)
+            } else {
+                (mean_re, mean_im)
+            },
             counts,
             max,
             quadratic: !self_conjugate,
         });
     }
     let product = |mult: &dyn Fn(&Cluster) -> usize| {
-        let real: Vec<(f64, usize)> = clusters.iter().filter(|c| !c.quadratic).map(|c| (c.centre.0, mult(c))).collect();
-        let pairs: Vec<((f64, f64), usize)> = clusters.iter().filter(|c| c.quadratic).map(|c| (c.centre, mult(c))).collect();
+        let real: Vec<(f64, usize)> = clusters
+            .iter()
+            .filter(|c| !c.quadratic)
+            .map(|c| (c.centre.0, mult(c)))
+            .collect();
+        let pairs: Vec<((f64, f64), usize)> = clusters
+            .iter()
+            .filter(|c| c.quadratic)
+            .map(|c| (c.centre, mult(c)))
+            .collect();
         poly_lcm::product_of_factors(&real, &pairs)
     };
     // A member holding every maximal multiplicity gives the lcm its own coefficients.
-    let full = present.iter().copied().find(|&i| clusters.iter().all(|c| c.counts[i] == c.max));
+    let full = present
+        .iter()
+        .copied()
+        .find(|&i| clusters.iter().all(|c| c.counts[i] == c.max));
     let lcm = match full {
         Some(i) => den(i).clone(),
         None => product(&|c: &Cluster| c.max),
@@ -411,12 +504,21 @@ fn float_group(members: &[Option<ProperSplit<f64>>], tol: f64) -> Result<(GroupD
             quotients.push(None);
             continue;
         };
-        let q = if Some(i) == full { vec![1.0] } else { product(&|c: &Cluster| c.max - c.counts[i]) };
+        let q = if Some(i) == full {
+            vec![1.0]
+        } else {
+            product(&|c: &Cluster| c.max - c.counts[i])
+        };
         let back = poly_lcm::mul(&s.den, &q);
         if back.len() != lcm.len() {
-            return Err(ModelError::NoConvergence { routine: "the root merging of the denominators" });
+            return Err(ModelError::NoConvergence {
+                routine: "the root merging of the denominators",
+            });
         }
-        let diff = back.iter().zip(&lcm).fold(0.0f64, |acc, (x, y)| acc.max((x - y).abs()));
+        let diff = back
+            .iter()
+            .zip(&lcm)
+            .fold(0.0f64, |acc, (x, y)| acc.max((x - y).abs()));
         residual = residual.max(diff / lcm_norm);
         quotients.push(Some(q));
     }
@@ -444,11 +546,20 @@ pub fn realize_transfer_matrix_f64(
     }
     let tol = tol.unwrap_or(DEFAULT_MERGE_TOL);
     if !(tol >= 0.0 && tol < 1.0) {
-        return Err(ModelError::BadValue { arg: "tol", detail: format!("the root-merging tolerance must be in [0, 1), found {tol}") });
+        return Err(ModelError::BadValue {
+            arg: "tol",
+            detail: format!("the root-merging tolerance must be in [0, 1), found {tol}"),
+        });
     }
     let splits = split_entries(p, m, num, den)?;
-    if splits.iter().flatten().any(|s| s.den.iter().chain(&s.strict_num).any(|v| !v.is_finite()) || !s.direct.is_finite()) {
-        return Err(ModelError::Overflow { what: "normalising num/den by the leading denominator coefficients".into() });
+    if splits
+        .iter()
+        .flatten()
+        .any(|s| s.den.iter().chain(&s.strict_num).any(|v| !v.is_finite()) || !s.direct.is_finite())
+    {
+        return Err(ModelError::Overflow {
+            what: "normalising num/den by the leading denominator coefficients".into(),
+        });
     }
     let (rows, cols, splits) = match form {
         BlockForm::BlockController => (p, m, splits),
@@ -464,11 +575,28 @@ pub fn realize_transfer_matrix_f64(
     }
     let block_orders = groups.iter().map(|g| g.lcm.len() - 1).collect();
     let ss = assemble(rows, cols, &splits, &groups)?;
-    if [&ss.a, &ss.b, &ss.c, &ss.d].iter().any(|x| x.as_slice().iter().any(|v| !v.is_finite())) || !residual.is_finite() {
-        return Err(ModelError::Overflow { what: "the block realization of the transfer matrix".into() });
+    if [&ss.a, &ss.b, &ss.c, &ss.d]
+        .iter()
+        .any(|x| x.as_slice().iter().any(|v| !v.is_finite()))
+        || !residual.is_finite()
+    {
+        return Err(ModelError::Overflow {
+            what: "the block realization of the transfer matrix".into(),
+        });
     }
-    let ss = if form == BlockForm::BlockObserver { ss.dual() } else { ss };
-    Ok((ss, TransferMatrixInfo { block_orders, merge_tol: tol, denominator_residual: residual }))
+    let ss = if form == BlockForm::BlockObserver {
+        ss.dual()
+    } else {
+        ss
+    };
+    Ok((
+        ss,
+        TransferMatrixInfo {
+            block_orders,
+            merge_tol: tol,
+            denominator_residual: residual,
+        },
+    ))
 }
 
 #[cfg(test)]
@@ -477,7 +605,9 @@ mod tests {
     use num_bigint::BigInt;
 
     fn q(v: &[i64]) -> Vec<BigRational> {
-        v.iter().map(|&k| BigRational::from_integer(BigInt::from(k))).collect()
+        v.iter()
+            .map(|&k| BigRational::from_integer(BigInt::from(k)))
+            .collect()
     }
 
     /// `C (sI − A)⁻¹ B + D` at a real point s by solving with Gaussian elimination (small n).
@@ -488,13 +618,17 @@ mod tests {
         for j in 0..m {
             let mut mat: Vec<Vec<f64>> = (0..n)
                 .map(|i| {
-                    let mut row: Vec<f64> = (0..n).map(|k| if i == k { s } else { 0.0 } - ss.a.get(i, k)).collect();
+                    let mut row: Vec<f64> = (0..n)
+                        .map(|k| if i == k { s } else { 0.0 } - ss.a.get(i, k))
+                        .collect();
                     row.push(*ss.b.get(i, j));
                     row
                 })
                 .collect();
             for col in 0..n {
-                let piv = (col..n).max_by(|&x, &y| mat[x][col].abs().total_cmp(&mat[y][col].abs())).unwrap();
+                let piv = (col..n)
+                    .max_by(|&x, &y| mat[x][col].abs().total_cmp(&mat[y][col].abs()))
+                    .unwrap();
                 mat.swap(col, piv);
                 for r in 0..n {
                     if r != col {
@@ -522,7 +656,8 @@ mod tests {
         // G = [[1/(s+1), 1/(s+2)], [1/(s+2), (s+3)/(s+3)]] (entries not reduced).
         let num = vec![q(&[1]), q(&[1]), q(&[1]), q(&[1, 3])];
         let den = vec![q(&[1, 1]), q(&[1, 2]), q(&[1, 2]), q(&[1, 3])];
-        let ss = realize_transfer_matrix_exact(2, 2, &num, &den, BlockForm::BlockController).unwrap();
+        let ss =
+            realize_transfer_matrix_exact(2, 2, &num, &den, BlockForm::BlockController).unwrap();
         // Column 1: lcm (s+1)(s+2); column 2: lcm (s+2)(s+3).
         assert_eq!(ss.a.rows(), 4);
         assert_eq!(ss.a.get(1, 0), &q(&[-2])[0]);
@@ -535,7 +670,8 @@ mod tests {
         // Entry (1, 1) = 1 + 0/(s+3): direct term 1, strictly proper part zero.
         assert_eq!(ss.d.get(1, 1), &q(&[1])[0]);
         assert_eq!(ss.c.as_slice()[6..8], q(&[0, 0])[..]);
-        let obs = realize_transfer_matrix_exact(2, 2, &num, &den, BlockForm::BlockObserver).unwrap();
+        let obs =
+            realize_transfer_matrix_exact(2, 2, &num, &den, BlockForm::BlockObserver).unwrap();
         assert_eq!(obs.a.rows(), 4);
     }
 
@@ -543,7 +679,12 @@ mod tests {
     fn float_merges_common_roots_and_matches_the_entries() {
         // Column 1: (s+1)(s+2) and (s+2)(s^2+s+1); column 2 zero numerator and 2/(s+4).
         let num = vec![vec![1.0, 0.0], vec![0.0], vec![3.0, 1.0], vec![2.0]];
-        let den = vec![vec![1.0, 3.0, 2.0], vec![1.0, 5.0], vec![1.0, 3.0, 3.0, 2.0], vec![1.0, 4.0]];
+        let den = vec![
+            vec![1.0, 3.0, 2.0],
+            vec![1.0, 5.0],
+            vec![1.0, 3.0, 3.0, 2.0],
+            vec![1.0, 4.0],
+        ];
         for form in [BlockForm::BlockController, BlockForm::BlockObserver] {
             let (ss, info) = realize_transfer_matrix_f64(2, 2, &num, &den, form, None).unwrap();
             assert!(info.denominator_residual < 1e-14, "{info:?}");
@@ -551,7 +692,11 @@ mod tests {
             let g = evaluate(&ss, s);
             for k in 0..4 {
                 let want = polyval(&num[k], s) / polyval(&den[k], s);
-                assert!((g[k] - want).abs() <= 1e-13 * (1.0 + want.abs()), "{form:?} entry {k}: {} vs {want}", g[k]);
+                assert!(
+                    (g[k] - want).abs() <= 1e-13 * (1.0 + want.abs()),
+                    "{form:?} entry {k}: {} vs {want}",
+                    g[k]
+                );
             }
             if form == BlockForm::BlockController {
                 assert_eq!(info.block_orders, vec![4, 1]);
@@ -563,13 +708,41 @@ mod tests {
 
     #[test]
     fn bad_entries_are_refused() {
-        let e = realize_transfer_matrix_f64(1, 1, &[vec![1.0, 0.0, 0.0]], &[vec![1.0, 1.0]], BlockForm::BlockController, None);
+        let e = realize_transfer_matrix_f64(
+            1,
+            1,
+            &[vec![1.0, 0.0, 0.0]],
+            &[vec![1.0, 1.0]],
+            BlockForm::BlockController,
+            None,
+        );
         assert!(matches!(e, Err(ModelError::BadValue { arg: "num", .. })));
-        let e = realize_transfer_matrix_f64(1, 1, &[vec![1.0]], &[vec![0.0]], BlockForm::BlockController, None);
+        let e = realize_transfer_matrix_f64(
+            1,
+            1,
+            &[vec![1.0]],
+            &[vec![0.0]],
+            BlockForm::BlockController,
+            None,
+        );
         assert!(matches!(e, Err(ModelError::BadValue { arg: "den", .. })));
-        let e = realize_transfer_matrix_f64(1, 1, &[vec![f64::NAN]], &[vec![1.0]], BlockForm::BlockController, None);
+        let e = realize_transfer_matrix_f64(
+            1,
+            1,
+            &[vec![f64::NAN]],
+            &[vec![1.0]],
+            BlockForm::BlockController,
+            None,
+        );
         assert!(matches!(e, Err(ModelError::NonFinite { arg: "num" })));
-        let e = realize_transfer_matrix_f64(1, 2, &[vec![1.0]], &[vec![1.0]], BlockForm::BlockController, None);
+        let e = realize_transfer_matrix_f64(
+            1,
+            2,
+            &[vec![1.0]],
+            &[vec![1.0]],
+            BlockForm::BlockController,
+            None,
+        );
         assert!(matches!(e, Err(ModelError::Shape { .. })));
         assert!("block".parse::<BlockForm>().is_err());
     }

@@ -47,43 +47,76 @@ pub trait Working: Copy + Send + Sync {
 impl Working for f64 {
     const UNIT: f64 = f64::EPSILON / 2.0;
     #[inline(always)]
-    fn from_f64(x: f64) -> Self { x }
+    fn from_f64(x: f64) -> Self {
+        x
+    }
     #[inline(always)]
-    fn to_f64(self) -> f64 { self }
+    fn to_f64(self) -> f64 {
+        self
+    }
     #[inline(always)]
-    fn add(self, o: Self) -> Self { self + o }
+    fn add(self, o: Self) -> Self {
+        self + o
+    }
     // Not fused, so results are identical on every CPU.
     #[inline(always)]
-    fn add_mul_f64(self, a: f64, b: Self) -> Self { self + a * b }
+    fn add_mul_f64(self, a: f64, b: Self) -> Self {
+        self + a * b
+    }
     #[inline(always)]
-    fn neg(self) -> Self { -self }
+    fn neg(self) -> Self {
+        -self
+    }
     #[inline(always)]
-    fn div_small(self, k: f64) -> Self { self / k }
+    fn div_small(self, k: f64) -> Self {
+        self / k
+    }
     #[inline(always)]
-    fn abs_f64(self) -> f64 { self.abs() }
+    fn abs_f64(self) -> f64 {
+        self.abs()
+    }
 }
 
 impl<const FMA: bool> Working for Dd<FMA> {
     const UNIT: f64 = double_double::UNIT_ROUNDOFF;
     #[inline(always)]
-    fn from_f64(x: f64) -> Self { Dd::from_f64(x) }
+    fn from_f64(x: f64) -> Self {
+        Dd::from_f64(x)
+    }
     #[inline(always)]
-    fn to_f64(self) -> f64 { Dd::to_f64(self) }
+    fn to_f64(self) -> f64 {
+        Dd::to_f64(self)
+    }
     #[inline(always)]
-    fn add(self, o: Self) -> Self { Dd::add(self, o) }
+    fn add(self, o: Self) -> Self {
+        Dd::add(self, o)
+    }
     #[inline(always)]
-    fn add_mul_f64(self, a: f64, b: Self) -> Self { Dd::add_mul_f64(self, a, b) }
+    fn add_mul_f64(self, a: f64, b: Self) -> Self {
+        Dd::add_mul_f64(self, a, b)
+    }
     #[inline(always)]
-    fn neg(self) -> Self { Dd::neg(self) }
+    fn neg(self) -> Self {
+        Dd::neg(self)
+    }
     #[inline(always)]
-    fn div_small(self, k: f64) -> Self { Dd::div_small(self, k) }
+    fn div_small(self, k: f64) -> Self {
+        Dd::div_small(self, k)
+    }
     #[inline(always)]
-    fn abs_f64(self) -> f64 { Dd::abs_f64(self) }
+    fn abs_f64(self) -> f64 {
+        Dd::abs_f64(self)
+    }
 }
 
 /// The double-double recursion, with the product errors from fused multiply-adds where the
 /// CPU has them (same results bit for bit, about twice as fast).
-pub fn certified_double_double(a: &[f64], n: usize, keep_adjugates: bool, model: Option<&StateSpace<f64>>) -> CertifiedSequence {
+pub fn certified_double_double(
+    a: &[f64],
+    n: usize,
+    keep_adjugates: bool,
+    model: Option<&StateSpace<f64>>,
+) -> CertifiedSequence {
     #[cfg(target_arch = "x86_64")]
     {
         if std::arch::is_x86_feature_detected!("fma") {
@@ -96,7 +129,12 @@ pub fn certified_double_double(a: &[f64], n: usize, keep_adjugates: bool, model:
 
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "fma")]
-unsafe fn certified_with_fma(a: &[f64], n: usize, keep_adjugates: bool, model: Option<&StateSpace<f64>>) -> CertifiedSequence {
+unsafe fn certified_with_fma(
+    a: &[f64],
+    n: usize,
+    keep_adjugates: bool,
+    model: Option<&StateSpace<f64>>,
+) -> CertifiedSequence {
     certified_recursion::<Dd<true>>(a, n, keep_adjugates, model)
 }
 
@@ -136,7 +174,11 @@ impl CertifiedSequence {
             if *e == 0.0 {
                 continue;
             }
-            let r = if *e < v.abs() { e / (v.abs() - e) } else { f64::INFINITY };
+            let r = if *e < v.abs() {
+                e / (v.abs() - e)
+            } else {
+                f64::INFINITY
+            };
             worst = worst.max(r);
         }
         worst
@@ -144,8 +186,17 @@ impl CertifiedSequence {
 
     /// True when every result and bound is finite.
     pub fn is_finite(&self) -> bool {
-        self.coeffs.iter().chain(&self.adjugates).chain(&self.numerator).all(|v| v.is_finite())
-            && self.coeff_bounds.iter().chain(&self.adjugate_bounds).chain(&self.numerator_bounds).all(|v| v.is_finite())
+        self.coeffs
+            .iter()
+            .chain(&self.adjugates)
+            .chain(&self.numerator)
+            .all(|v| v.is_finite())
+            && self
+                .coeff_bounds
+                .iter()
+                .chain(&self.adjugate_bounds)
+                .chain(&self.numerator_bounds)
+                .all(|v| v.is_finite())
     }
 }
 
@@ -188,7 +239,12 @@ fn mul_right<W: Working>(x: &[W], y: &[f64], out: &mut [W], r: usize, k: usize, 
 /// Runs the recursion on the n×n row-major `a` in working precision W; with `model`, also
 /// the transfer-matrix numerator of `model` (whose A must be `a`).
 #[inline(always)]
-pub fn certified_recursion<W: Working>(a: &[f64], n: usize, keep_adjugates: bool, model: Option<&StateSpace<f64>>) -> CertifiedSequence {
+pub fn certified_recursion<W: Working>(
+    a: &[f64],
+    n: usize,
+    keep_adjugates: bool,
+    model: Option<&StateSpace<f64>>,
+) -> CertifiedSequence {
     let u = W::UNIT;
     let abs_a: Vec<f64> = a.iter().map(|v| v.abs()).collect();
     let (gn, g2n) = (gamma(n, u), gamma(2 * n, u));
@@ -255,8 +311,9 @@ pub fn certified_recursion<W: Working>(a: &[f64], n: usize, keep_adjugates: bool
             for i in 0..p * m {
                 let v = cnb[i].add_mul_f64(d[i], ck);
                 numerator[i * (n + 1) + k] = v.to_f64();
-                numerator_bounds[i * (n + 1) + k] =
-                    cgb[i] + ck_err * d[i].abs() + 2.0 * u * (cnb[i].abs_f64() + (ck.abs_f64() * d[i].abs()));
+                numerator_bounds[i * (n + 1) + k] = cgb[i]
+                    + ck_err * d[i].abs()
+                    + 2.0 * u * (cnb[i].abs_f64() + (ck.abs_f64() * d[i].abs()));
             }
         }
 
@@ -273,5 +330,12 @@ pub fn certified_recursion<W: Working>(a: &[f64], n: usize, keep_adjugates: bool
             std::mem::swap(&mut current, &mut product);
         }
     }
-    CertifiedSequence { coeffs, coeff_bounds, adjugates, adjugate_bounds, numerator, numerator_bounds }
+    CertifiedSequence {
+        coeffs,
+        coeff_bounds,
+        adjugates,
+        adjugate_bounds,
+        numerator,
+        numerator_bounds,
+    }
 }

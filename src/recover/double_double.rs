@@ -89,7 +89,10 @@ impl<const FMA: bool> Dd<FMA> {
 
     #[inline(always)]
     pub fn neg(self) -> Self {
-        Dd { hi: -self.hi, lo: -self.lo }
+        Dd {
+            hi: -self.hi,
+            lo: -self.lo,
+        }
     }
 
     /// Division by a small positive integer k.

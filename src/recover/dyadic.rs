@@ -52,7 +52,11 @@ fn decompose(x: f64) -> (i8, u64, i64) {
     let sign = if bits >> 63 == 1 { -1 } else { 1 };
     let biased = ((bits >> 52) & 0x7ff) as i64;
     let frac = bits & ((1u64 << 52) - 1);
-    let (mut mant, mut exp) = if biased == 0 { (frac, -1074) } else { (frac | (1u64 << 52), biased - 1075) };
+    let (mut mant, mut exp) = if biased == 0 {
+        (frac, -1074)
+    } else {
+        (frac | (1u64 << 52), biased - 1075)
+    };
     let tz = mant.trailing_zeros();
     mant >>= tz;
     exp += tz as i64;
@@ -62,18 +66,30 @@ fn decompose(x: f64) -> (i8, u64, i64) {
 impl DyadicMatrix {
     pub fn from_f64(x: &Matrix<f64>) -> Self {
         let parts: Vec<(i8, u64, i64)> = x.as_slice().iter().map(|&v| decompose(v)).collect();
-        let shift = parts.iter().filter(|p| p.0 != 0).map(|p| p.2).min().unwrap_or(0);
+        let shift = parts
+            .iter()
+            .filter(|p| p.0 != 0)
+            .map(|p| p.2)
+            .min()
+            .unwrap_or(0);
         let data = parts
             .iter()
             .map(|&(sign, mant, exp)| match sign {
                 0 => <BigInt as Zero>::zero(),
                 s => {
                     let v = BigInt::from(mant) << ((exp - shift) as usize);
-                    if s < 0 { -v } else { v }
+                    if s < 0 {
+                        -v
+                    } else {
+                        v
+                    }
                 }
             })
             .collect();
-        DyadicMatrix { m: Matrix::from_row_major(x.rows(), x.cols(), data).expect("same shape"), shift }
+        DyadicMatrix {
+            m: Matrix::from_row_major(x.rows(), x.cols(), data).expect("same shape"),
+            shift,
+        }
     }
 }
 
@@ -124,7 +140,9 @@ fn ldexp(mut x: f64, mut e: i64) -> f64 {
 }
 
 fn round_or_overflow(value: &BigInt, exp: i64, what: &str) -> Result<f64> {
-    round_scaled(value, exp).ok_or_else(|| ModelError::Overflow { what: what.to_string() })
+    round_scaled(value, exp).ok_or_else(|| ModelError::Overflow {
+        what: what.to_string(),
+    })
 }
 
 /// Refuse an exact evaluation whose estimated time exceeds the budget, before any work.
@@ -147,7 +165,10 @@ fn check_budget(n: usize, seconds: f64, bits: u64) -> Result<()> {
 ///
 /// The coefficients alone come from the multi-modular Hessenberg method ([`modular`]); the
 /// adjugates need the big-integer recursion. Either is refused beyond the time budget.
-pub fn faddeev_leverrier_dyadic(a: &Matrix<f64>, with_adjugates: bool) -> Result<(Vec<f64>, Vec<Matrix<f64>>)> {
+pub fn faddeev_leverrier_dyadic(
+    a: &Matrix<f64>,
+    with_adjugates: bool,
+) -> Result<(Vec<f64>, Vec<Matrix<f64>>)> {
     let dy = DyadicMatrix::from_f64(a);
     let n = a.rows();
     let e = dy.shift;
@@ -157,7 +178,11 @@ pub fn faddeev_leverrier_dyadic(a: &Matrix<f64>, with_adjugates: bool) -> Result
         faddeev_leverrier(&dy.m)
     } else {
         let bits = modular::coefficient_bits(&dy.m);
-        check_budget(n, modular::estimated_seconds(n, bits, entry_bits, 1), entry_bits)?;
+        check_budget(
+            n,
+            modular::estimated_seconds(n, bits, entry_bits, 1),
+            entry_bits,
+        )?;
         (modular::characteristic_polynomial(&dy.m), Vec::new())
     };
     let rounded: Vec<f64> = coeffs
@@ -189,8 +214,16 @@ pub fn transfer_function_dyadic(ss: &StateSpace<f64>) -> Result<(Vec<f64>, Vec<f
     let d = DyadicMatrix::from_f64(&ss.d);
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
     let bits = modular::coefficient_bits(&a.m).max(modular::numerator_term_bits(&a.m, &b.m, &c.m));
-    let entry_bits = [&a.m, &b.m, &c.m].iter().map(|x| modular::max_entry_bits(x)).max().unwrap_or(0);
-    check_budget(n, modular::estimated_seconds_transfer(n, bits, entry_bits, p, m), entry_bits)?;
+    let entry_bits = [&a.m, &b.m, &c.m]
+        .iter()
+        .map(|x| modular::max_entry_bits(x))
+        .max()
+        .unwrap_or(0);
+    check_budget(
+        n,
+        modular::estimated_seconds_transfer(n, bits, entry_bits, p, m),
+        entry_bits,
+    )?;
 
     let (coeffs, terms) = modular::transfer_terms(&a.m, &b.m, &c.m);
     let den = coeffs
@@ -261,13 +294,22 @@ mod tests {
             let (p, m) = (1 + (rng.next() % 3) as usize, 1 + (rng.next() % 3) as usize);
             let range = [4, 60, 300][case % 3];
             let mut draw = |r: usize, c: usize| {
-                Matrix::from_row_major(r, c, (0..r * c).map(|_| random_entry(&mut rng, range)).collect()).unwrap()
+                Matrix::from_row_major(
+                    r,
+                    c,
+                    (0..r * c).map(|_| random_entry(&mut rng, range)).collect(),
+                )
+                .unwrap()
             };
             let ss = StateSpace::new(draw(n, n), draw(n, m), draw(p, n), draw(p, m)).unwrap();
-            let exact_ss = StateSpace::new(exact(&ss.a), exact(&ss.b), exact(&ss.c), exact(&ss.d)).unwrap();
+            let exact_ss =
+                StateSpace::new(exact(&ss.a), exact(&ss.b), exact(&ss.c), exact(&ss.d)).unwrap();
             let (num_ref, den_ref) = transfer_function(&exact_ss);
             let expect: Option<(Vec<f64>, Vec<f64>)> = (|| {
-                Some((num_ref.iter().map(round).collect::<Option<_>>()?, den_ref.iter().map(round).collect::<Option<_>>()?))
+                Some((
+                    num_ref.iter().map(round).collect::<Option<_>>()?,
+                    den_ref.iter().map(round).collect::<Option<_>>()?,
+                ))
             })();
             match (transfer_function_dyadic(&ss), expect) {
                 (Ok(got), Some(want)) => assert_eq!(got, want, "case {case}: {ss:?}"),

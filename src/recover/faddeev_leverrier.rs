@@ -58,7 +58,11 @@ pub fn transfer_function<T: Scalar>(ss: &StateSpace<T>) -> (Vec<T>, Vec<T>) {
 }
 
 /// Assembles `D s^n + Σ_k (C N_{k−1} B + c_k D) s^(n−k)` entry by entry.
-pub fn numerator_from_sequence<T: Scalar>(ss: &StateSpace<T>, coeffs: &[T], adjugates: &[Matrix<T>]) -> Vec<T> {
+pub fn numerator_from_sequence<T: Scalar>(
+    ss: &StateSpace<T>,
+    coeffs: &[T],
+    adjugates: &[Matrix<T>],
+) -> Vec<T> {
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
     let mut num = vec![T::zero(); p * m * (n + 1)];
     for i in 0..p {

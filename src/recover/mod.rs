@@ -88,7 +88,11 @@ impl FromStr for Method {
             "auto" => Ok(Method::Auto),
             "recursion" => Ok(Method::Recursion),
             "exact" => Ok(Method::Exact),
-            other => Err(ModelError::BadOption { arg: "method", found: other.into(), allowed: METHOD_NAMES }),
+            other => Err(ModelError::BadOption {
+                arg: "method",
+                found: other.into(),
+                allowed: METHOD_NAMES,
+            }),
         }
     }
 }
@@ -103,10 +107,16 @@ pub struct Accuracy {
     pub relative_error_bound: f64,
 }
 
-const EXACT: Accuracy = Accuracy { method: "exact, rounded once", relative_error_bound: f64::EPSILON / 2.0 };
+const EXACT: Accuracy = Accuracy {
+    method: "exact, rounded once",
+    relative_error_bound: f64::EPSILON / 2.0,
+};
 
 fn unchecked(bound: f64) -> Accuracy {
-    Accuracy { method: "float64 recursion (unchecked)", relative_error_bound: bound }
+    Accuracy {
+        method: "float64 recursion (unchecked)",
+        relative_error_bound: bound,
+    }
 }
 
 fn check_square(a: &Matrix<f64>) -> Result<()> {
@@ -124,18 +134,26 @@ fn split_adjugates(flat: Vec<f64>, n: usize) -> Vec<Matrix<f64>> {
     if n == 0 {
         return Vec::new();
     }
-    flat.chunks(n * n).map(|c| Matrix::from_row_major(n, n, c.to_vec()).expect("n x n")).collect()
+    flat.chunks(n * n)
+        .map(|c| Matrix::from_row_major(n, n, c.to_vec()).expect("n x n"))
+        .collect()
 }
 
 /// The fast evaluations: plain float64 for `Recursion`, certified double-double for `Auto`
 /// (`None` when the bound does not certify it). `Exact` never comes here.
-fn fast_path(a: &Matrix<f64>, method: Method, with_adjugates: bool, model: Option<&StateSpace<f64>>)
-    -> Result<Option<(certified::CertifiedSequence, Accuracy)>> {
+fn fast_path(
+    a: &Matrix<f64>,
+    method: Method,
+    with_adjugates: bool,
+    model: Option<&StateSpace<f64>>,
+) -> Result<Option<(certified::CertifiedSequence, Accuracy)>> {
     let n = a.rows();
     if method == Method::Recursion {
         let seq = certified::certified_recursion::<f64>(a.as_slice(), n, with_adjugates, model);
         if !seq.is_finite() {
-            return Err(ModelError::Overflow { what: "the float64 recursion".into() });
+            return Err(ModelError::Overflow {
+                what: "the float64 recursion".into(),
+            });
         }
         let bound = seq.worst_relative_bound();
         return Ok(Some((seq, unchecked(bound))));
@@ -143,14 +161,21 @@ fn fast_path(a: &Matrix<f64>, method: Method, with_adjugates: bool, model: Optio
     let seq = certified::certified_double_double(a.as_slice(), n, with_adjugates, model);
     let worst = seq.worst_relative_bound();
     if seq.is_finite() && worst <= CERTIFIED_TOLERANCE {
-        let acc = Accuracy { method: "certified double-double recursion", relative_error_bound: worst + FLOAT_UNIT };
+        let acc = Accuracy {
+            method: "certified double-double recursion",
+            relative_error_bound: worst + FLOAT_UNIT,
+        };
         return Ok(Some((seq, acc)));
     }
     Ok(None)
 }
 
 /// Characteristic polynomial `[1, c_1, ..., c_n]` and adjugates `N_0 .. N_{n−1}` of float `a`.
-pub fn faddeev_leverrier_f64(a: &Matrix<f64>, method: Method, with_adjugates: bool) -> Result<(Vec<f64>, Vec<Matrix<f64>>, Accuracy)> {
+pub fn faddeev_leverrier_f64(
+    a: &Matrix<f64>,
+    method: Method,
+    with_adjugates: bool,
+) -> Result<(Vec<f64>, Vec<Matrix<f64>>, Accuracy)> {
     check_square(a)?;
     let n = a.rows();
     check_recursion_order(n)?;
@@ -167,7 +192,10 @@ pub fn faddeev_leverrier_f64(a: &Matrix<f64>, method: Method, with_adjugates: bo
 }
 
 /// Transfer matrix `(num (p·m·(n+1)), den (n+1))` of a float model.
-pub fn transfer_function_f64(ss: &StateSpace<f64>, method: Method) -> Result<(Vec<f64>, Vec<f64>, Accuracy)> {
+pub fn transfer_function_f64(
+    ss: &StateSpace<f64>,
+    method: Method,
+) -> Result<(Vec<f64>, Vec<f64>, Accuracy)> {
     for (arg, m) in [("a", &ss.a), ("b", &ss.b), ("c", &ss.c), ("d", &ss.d)] {
         require_finite(arg, m.as_slice())?;
     }

@@ -68,7 +68,11 @@ impl Field {
         }
         let r = ((1u128 << 64) % p as u128) as u64;
         let r2 = ((r as u128 * r as u128) % p as u128) as u64;
-        Field { p, neg_inv: inv.wrapping_neg(), r2 }
+        Field {
+            p,
+            neg_inv: inv.wrapping_neg(),
+            r2,
+        }
     }
 
     /// `t · 2^−64 mod p` for `t < p · 2^64`.
@@ -77,7 +81,11 @@ impl Field {
         let m = (t as u64).wrapping_mul(self.neg_inv);
         // t + m·p < 2^124 + 2^126 fits; the low word cancels by the choice of m.
         let u = ((t + m as u128 * self.p as u128) >> 64) as u64;
-        if u >= self.p { u - self.p } else { u }
+        if u >= self.p {
+            u - self.p
+        } else {
+            u
+        }
     }
 
     #[inline(always)]
@@ -88,12 +96,20 @@ impl Field {
     #[inline(always)]
     fn add(&self, a: u64, b: u64) -> u64 {
         let s = a + b; // < 2^63: no overflow
-        if s >= self.p { s - self.p } else { s }
+        if s >= self.p {
+            s - self.p
+        } else {
+            s
+        }
     }
 
     #[inline(always)]
     fn sub(&self, a: u64, b: u64) -> u64 {
-        if a >= b { a - b } else { a + self.p - b }
+        if a >= b {
+            a - b
+        } else {
+            a + self.p - b
+        }
     }
 
     /// Into Montgomery form: `x·2^64 mod p`.
@@ -126,7 +142,11 @@ impl Field {
             // acc·2^64 + d: multiplying by r2 in Montgomery form multiplies by 2^64.
             acc = self.add(self.mul(acc, self.r2), self.enter(d));
         }
-        if negative { self.sub(0, acc) } else { acc }
+        if negative {
+            self.sub(0, acc)
+        } else {
+            acc
+        }
     }
 }
 
@@ -184,7 +204,9 @@ fn is_prime(n: u64) -> bool {
 /// The `count` largest primes below 2^62.
 fn primes(count: usize) -> Vec<u64> {
     // A poisoned lock still holds a valid prefix of primes.
-    let mut cached = PRIMES.lock().unwrap_or_else(|poisoned| poisoned.into_inner());
+    let mut cached = PRIMES
+        .lock()
+        .unwrap_or_else(|poisoned| poisoned.into_inner());
     let mut candidate = cached.last().map_or((1u64 << 62) - 1, |&p| p - 2);
     while cached.len() < count {
         if is_prime(candidate) {
@@ -249,7 +271,10 @@ pub fn estimated_seconds_transfer(n: usize, bits: u64, entry_bits: u64, p: usize
     let primes = primes_needed(bits) as f64;
     let (nf, pf, mf) = (n as f64, p as f64, m as f64);
     let words = (entry_bits as f64 / 64.0).ceil();
-    let per_prime = 10.0 / 3.0 * nf.powi(3) + nf.powi(3) * mf + nf * nf * pf * mf + 3.0 * (nf * nf + nf * (pf + mf)) * words;
+    let per_prime = 10.0 / 3.0 * nf.powi(3)
+        + nf.powi(3) * mf
+        + nf * nf * pf * mf
+        + 3.0 * (nf * nf + nf * (pf + mf)) * words;
     let values = nf + 1.0 + pf * mf * nf;
     primes * per_prime * 3.0e-9 + values * primes * primes * 0.5 * 5.0e-9
 }
@@ -260,7 +285,9 @@ fn characteristic_polynomial_mod(h: &mut [u64], n: usize, f: &Field) -> Vec<u64>
     let at = |i: usize, j: usize| i * n + j;
     // Hessenberg reduction by stabilized elementary similarities.
     for j in 0..n.saturating_sub(2) {
-        let Some(pivot) = (j + 1..n).find(|&i| h[at(i, j)] != 0) else { continue };
+        let Some(pivot) = (j + 1..n).find(|&i| h[at(i, j)] != 0) else {
+            continue;
+        };
         if pivot != j + 1 {
             for c in 0..n {
                 h.swap(at(pivot, c), at(j + 1, c));
@@ -348,22 +375,36 @@ fn reconstruct(primes: &[u64], residues: &[Vec<u64>]) -> Vec<BigInt> {
                 x *= primes[i];
                 x += di;
             }
-            if x > half { BigInt::from_biguint(Sign::Minus, &product - x) } else { BigInt::from_biguint(Sign::Plus, x) }
+            if x > half {
+                BigInt::from_biguint(Sign::Minus, &product - x)
+            } else {
+                BigInt::from_biguint(Sign::Plus, x)
+            }
         })
         .collect()
 }
 
 /// Sign and base-2^64 digits of every entry, computed once and reduced by every prime.
 fn digits_of(m: &Matrix<BigInt>) -> Vec<(bool, Vec<u64>)> {
-    m.as_slice().iter().map(|x| (x.sign() == Sign::Minus, x.magnitude().to_u64_digits())).collect()
+    m.as_slice()
+        .iter()
+        .map(|x| (x.sign() == Sign::Minus, x.magnitude().to_u64_digits()))
+        .collect()
 }
 
 fn reduce_all(f: &Field, digits: &[(bool, Vec<u64>)]) -> Vec<u64> {
-    digits.iter().map(|(negative, d)| f.reduce_digits(*negative, d)).collect()
+    digits
+        .iter()
+        .map(|(negative, d)| f.reduce_digits(*negative, d))
+        .collect()
 }
 
 /// `per_prime` for every prime, in parallel when there is enough work to share.
-fn over_primes(primes: &[u64], work_per_prime: usize, per_prime: impl Fn(&Field) -> Vec<u64> + Sync) -> Vec<Vec<u64>> {
+fn over_primes(
+    primes: &[u64],
+    work_per_prime: usize,
+    per_prime: impl Fn(&Field) -> Vec<u64> + Sync,
+) -> Vec<Vec<u64>> {
     let run = |&p: &u64| per_prime(&Field::new(p));
     // Spreading a few microseconds of work over threads costs more than it saves.
     if primes.len().saturating_mul(work_per_prime) < PARALLEL_WORK {
@@ -410,7 +451,11 @@ pub fn numerator_term_bits(m: &Matrix<BigInt>, b: &Matrix<BigInt>, c: &Matrix<Bi
 /// Per prime, besides the characteristic polynomial: the Markov parameters
 /// `h_l = C M^l B`, l < n (n matrix-vector products per input), and
 /// `c_i N_k b_j = Σ_{l ≤ k} c_l h_{k−l}`, since `N_k = Σ_{l ≤ k} c_l M^(k−l)`.
-pub fn transfer_terms(m: &Matrix<BigInt>, b: &Matrix<BigInt>, c: &Matrix<BigInt>) -> (Vec<BigInt>, Vec<BigInt>) {
+pub fn transfer_terms(
+    m: &Matrix<BigInt>,
+    b: &Matrix<BigInt>,
+    c: &Matrix<BigInt>,
+) -> (Vec<BigInt>, Vec<BigInt>) {
     let (n, inputs, outputs) = (m.rows(), b.cols(), c.rows());
     let bits = coefficient_bits(m).max(numerator_term_bits(m, b, c));
     let primes = primes(primes_needed(bits));
@@ -426,14 +471,18 @@ pub fn transfer_terms(m: &Matrix<BigInt>, b: &Matrix<BigInt>, c: &Matrix<BigInt>
         for l in 0..n {
             for i in 0..outputs {
                 for j in 0..inputs {
-                    let dot = (0..n).fold(0, |acc, r| f.add(acc, f.mul(cm[i * n + r], v[r * inputs + j])));
+                    let dot = (0..n).fold(0, |acc, r| {
+                        f.add(acc, f.mul(cm[i * n + r], v[r * inputs + j]))
+                    });
                     markov[(l * outputs + i) * inputs + j] = dot;
                 }
             }
             if l + 1 < n {
                 for r in 0..n {
                     for j in 0..inputs {
-                        next[r * inputs + j] = (0..n).fold(0, |acc, t| f.add(acc, f.mul(h[r * n + t], v[t * inputs + j])));
+                        next[r * inputs + j] = (0..n).fold(0, |acc, t| {
+                            f.add(acc, f.mul(h[r * n + t], v[t * inputs + j]))
+                        });
                     }
                 }
                 std::mem::swap(&mut v, &mut next);
@@ -445,7 +494,12 @@ pub fn transfer_terms(m: &Matrix<BigInt>, b: &Matrix<BigInt>, c: &Matrix<BigInt>
             for j in 0..inputs {
                 for k in 0..n {
                     // plain × Montgomery = plain
-                    let term = (0..=k).fold(0, |acc, l| f.add(acc, f.mul(coeffs[l], markov[((k - l) * outputs + i) * inputs + j])));
+                    let term = (0..=k).fold(0, |acc, l| {
+                        f.add(
+                            acc,
+                            f.mul(coeffs[l], markov[((k - l) * outputs + i) * inputs + j]),
+                        )
+                    });
                     out.push(term);
                 }
             }
@@ -471,12 +525,22 @@ mod tests {
             x = (x << 50) + BigInt::from(rng.next() >> 3);
         }
         x >>= (bits.div_ceil(50) * 50 - bits) as usize;
-        if rng.next() & 1 == 1 { -x } else { x }
+        if rng.next() & 1 == 1 {
+            -x
+        } else {
+            x
+        }
     }
 
     fn random_matrix(rng: &mut Lcg, n: usize, bits: u32, zero_every: u64) -> Matrix<BigInt> {
         let data = (0..n * n)
-            .map(|_| if zero_every > 0 && rng.next().is_multiple_of(zero_every) { BigInt::zero() } else { random_int(rng, bits) })
+            .map(|_| {
+                if zero_every > 0 && rng.next().is_multiple_of(zero_every) {
+                    BigInt::zero()
+                } else {
+                    random_int(rng, bits)
+                }
+            })
             .collect();
         Matrix::from_row_major(n, n, data).unwrap()
     }
@@ -507,7 +571,9 @@ mod tests {
         assert!(!is_prime(3_215_031_751));
         assert!(is_prime(1_000_000_007));
         let ps = primes(20);
-        assert!(ps.windows(2).all(|w| w[0] > w[1]) && ps.iter().all(|&p| p > 1 << 61 && p < 1 << 62));
+        assert!(
+            ps.windows(2).all(|w| w[0] > w[1]) && ps.iter().all(|&p| p > 1 << 61 && p < 1 << 62)
+        );
     }
 
     #[test]
@@ -521,16 +587,21 @@ mod tests {
             -(BigInt::from(1u8) << 250usize) + BigInt::from(17),
             (BigInt::from(1u8) << 300usize) - BigInt::from(3),
         ];
-        let residues: Vec<Vec<u64>> = ps
-            .iter()
-            .map(|&p| {
-                let f = Field::new(p);
-                values
-                    .iter()
-                    .map(|v| f.leave(f.reduce_digits(v.sign() == Sign::Minus, &v.magnitude().to_u64_digits())))
-                    .collect()
-            })
-            .collect();
+        let residues: Vec<Vec<u64>> =
+            ps.iter()
+                .map(|&p| {
+                    let f = Field::new(p);
+                    values
+                        .iter()
+                        .map(|v| {
+                            f.leave(f.reduce_digits(
+                                v.sign() == Sign::Minus,
+                                &v.magnitude().to_u64_digits(),
+                            ))
+                        })
+                        .collect()
+                })
+                .collect();
         assert_eq!(reconstruct(&ps, &residues), values);
     }
 
@@ -538,10 +609,24 @@ mod tests {
     fn agrees_with_the_integer_recursion() {
         // (identity) the same exact characteristic polynomial by Faddeev–LeVerrier over BigInt.
         let mut rng = Lcg(2026);
-        for &(n, bits, zeros) in &[(0, 8, 0), (1, 8, 0), (2, 3, 0), (5, 1, 2), (7, 60, 0), (9, 200, 3), (12, 64, 5), (16, 130, 0), (6, 2000, 0)] {
+        for &(n, bits, zeros) in &[
+            (0, 8, 0),
+            (1, 8, 0),
+            (2, 3, 0),
+            (5, 1, 2),
+            (7, 60, 0),
+            (9, 200, 3),
+            (12, 64, 5),
+            (16, 130, 0),
+            (6, 2000, 0),
+        ] {
             let m = random_matrix(&mut rng, n, bits, zeros);
             let (expect, _) = faddeev_leverrier(&m);
-            assert_eq!(characteristic_polynomial(&m), expect, "n = {n}, bits = {bits}");
+            assert_eq!(
+                characteristic_polynomial(&m),
+                expect,
+                "n = {n}, bits = {bits}"
+            );
         }
     }
 
@@ -550,10 +635,34 @@ mod tests {
         // (identity) c_i N_k b_j from the integer recursion's adjugates, for random integer
         // data with a zero column of B and long entries.
         let mut rng = Lcg(31);
-        for &(n, p, m, bits) in &[(0, 1, 1, 8), (1, 2, 1, 8), (3, 1, 1, 4), (6, 2, 3, 70), (9, 3, 2, 300)] {
+        for &(n, p, m, bits) in &[
+            (0, 1, 1, 8),
+            (1, 2, 1, 8),
+            (3, 1, 1, 4),
+            (6, 2, 3, 70),
+            (9, 3, 2, 300),
+        ] {
             let a = random_matrix(&mut rng, n, bits, 4);
-            let b = Matrix::from_row_major(n, m, (0..n * m).map(|k| if k % m == m - 1 && m > 1 { BigInt::zero() } else { random_int(&mut rng, bits) }).collect()).unwrap();
-            let c = Matrix::from_row_major(p, n, (0..p * n).map(|_| random_int(&mut rng, 40)).collect()).unwrap();
+            let b = Matrix::from_row_major(
+                n,
+                m,
+                (0..n * m)
+                    .map(|k| {
+                        if k % m == m - 1 && m > 1 {
+                            BigInt::zero()
+                        } else {
+                            random_int(&mut rng, bits)
+                        }
+                    })
+                    .collect(),
+            )
+            .unwrap();
+            let c = Matrix::from_row_major(
+                p,
+                n,
+                (0..p * n).map(|_| random_int(&mut rng, 40)).collect(),
+            )
+            .unwrap();
             let (expect_coeffs, adjugates) = faddeev_leverrier(&a);
             let (coeffs, terms) = transfer_terms(&a, &b, &c);
             assert_eq!(coeffs, expect_coeffs);
@@ -562,7 +671,11 @@ mod tests {
                 let cnb = c.matmul(&nk.matmul(&b));
                 for i in 0..p {
                     for j in 0..m {
-                        assert_eq!(&terms[(i * m + j) * n + k], cnb.get(i, j), "n = {n}, k = {k}");
+                        assert_eq!(
+                            &terms[(i * m + j) * n + k],
+                            cnb.get(i, j),
+                            "n = {n}, k = {k}"
+                        );
                     }
                 }
             }
@@ -574,14 +687,35 @@ mod tests {
         // (identity) a nilpotent shift has det(sI − N) = s^n; a zero matrix too; and the
         // companion matrix of s³ − 2s² − 5s + 6 gives that polynomial back.
         let n = 6;
-        let shift = Matrix::from_row_major(n, n, (0..n * n).map(|k| BigInt::from((k % n == k / n + 1) as i64)).collect()).unwrap();
+        let shift = Matrix::from_row_major(
+            n,
+            n,
+            (0..n * n)
+                .map(|k| BigInt::from((k % n == k / n + 1) as i64))
+                .collect(),
+        )
+        .unwrap();
         let mut expect = vec![BigInt::zero(); n + 1];
         expect[0] = BigInt::from(1);
         assert_eq!(characteristic_polynomial(&shift), expect);
         let zero = Matrix::from_row_major(n, n, vec![BigInt::zero(); n * n]).unwrap();
         assert_eq!(characteristic_polynomial(&zero), expect);
-        let companion = Matrix::from_row_major(3, 3, [2, 5, -6, 1, 0, 0, 0, 1, 0].iter().map(|&v| BigInt::from(v)).collect()).unwrap();
-        assert_eq!(characteristic_polynomial(&companion), [1, -2, -5, 6].iter().map(|&v| BigInt::from(v)).collect::<Vec<_>>());
+        let companion = Matrix::from_row_major(
+            3,
+            3,
+            [2, 5, -6, 1, 0, 0, 0, 1, 0]
+                .iter()
+                .map(|&v| BigInt::from(v))
+                .collect(),
+        )
+        .unwrap();
+        assert_eq!(
+            characteristic_polynomial(&companion),
+            [1, -2, -5, 6]
+                .iter()
+                .map(|&v| BigInt::from(v))
+                .collect::<Vec<_>>()
+        );
     }
 
     #[test]

@@ -64,7 +64,9 @@ struct Cleared {
 pub fn estimated_seconds(n: usize, bits: u64, reductions: usize) -> f64 {
     let n = n as f64;
     let words = (bits as f64 / 64.0).max(1.0);
-    n.powi(4) * 5.0e-8 + 0.5 * n.powi(5) * words.powf(1.585) * 3.0e-9 + reductions as f64 * words * words * 2.0e-8
+    n.powi(4) * 5.0e-8
+        + 0.5 * n.powi(5) * words.powf(1.585) * 3.0e-9
+        + reductions as f64 * words * words * 2.0e-8
 }
 
 /// Longest time the exact recursion may be expected to take before it is refused.
@@ -76,7 +78,11 @@ fn largest_bits_within_budget(seconds: impl Fn(u64) -> f64) -> u64 {
     let (mut low, mut high) = (64u64, 1u64 << 40);
     while low + 1 < high {
         let mid = low + (high - low) / 2;
-        if seconds(mid) <= EXACT_TIME_BUDGET_SECONDS { low = mid } else { high = mid }
+        if seconds(mid) <= EXACT_TIME_BUDGET_SECONDS {
+            low = mid
+        } else {
+            high = mid
+        }
     }
     low
 }
@@ -100,7 +106,12 @@ fn too_costly(arg: &'static str, n: usize, bits: u64, budget: u64) -> ModelError
 
 /// `x = M / L` with L the least common multiple of the denominators, refused as soon as an
 /// entry of M would exceed `budget` bits (so a huge L is never formed in full).
-fn clear_denominators(arg: &'static str, x: &Matrix<BigRational>, n: usize, budget: u64) -> Result<Cleared> {
+fn clear_denominators(
+    arg: &'static str,
+    x: &Matrix<BigRational>,
+    n: usize,
+    budget: u64,
+) -> Result<Cleared> {
     let mut denominator = BigInt::one();
     for q in x.as_slice() {
         denominator = denominator.lcm(q.denom());
@@ -108,11 +119,18 @@ fn clear_denominators(arg: &'static str, x: &Matrix<BigRational>, n: usize, budg
             return Err(too_costly(arg, n, denominator.bits(), budget));
         }
     }
-    let data: Vec<BigInt> = x.as_slice().iter().map(|q| q.numer() * (&denominator / q.denom())).collect();
+    let data: Vec<BigInt> = x
+        .as_slice()
+        .iter()
+        .map(|q| q.numer() * (&denominator / q.denom()))
+        .collect();
     if let Some(bits) = data.iter().map(|v| v.bits()).max().filter(|&b| b > budget) {
         return Err(too_costly(arg, n, bits, budget));
     }
-    Ok(Cleared { m: Matrix::from_row_major(x.rows(), x.cols(), data).expect("same shape"), denominator })
+    Ok(Cleared {
+        m: Matrix::from_row_major(x.rows(), x.cols(), data).expect("same shape"),
+        denominator,
+    })
 }
 
 /// `numer / Π base^exponent` in lowest terms (every base positive).
@@ -179,14 +197,19 @@ fn modular_bit_budget(n: usize, count: usize, reductions: usize) -> u64 {
 /// The coefficients alone come from the multi-modular Hessenberg method ([`modular`]) on
 /// the cleared integer matrix; the adjugates need the integer recursion. Refused with
 /// [`ModelError::TooLarge`] when the estimated time exceeds [`EXACT_TIME_BUDGET_SECONDS`].
-pub fn faddeev_leverrier_rational(a: &Matrix<BigRational>, with_adjugates: bool)
-    -> Result<(Vec<BigRational>, Vec<Matrix<BigRational>>)> {
+pub fn faddeev_leverrier_rational(
+    a: &Matrix<BigRational>,
+    with_adjugates: bool,
+) -> Result<(Vec<BigRational>, Vec<Matrix<BigRational>>)> {
     let n = a.rows();
     if !with_adjugates {
         let budget = modular_bit_budget(n, 1, n).max(bit_budget(n, n));
         let cleared = clear_denominators("a", a, n, budget)?;
         let bits = modular::max_entry_bits(&cleared.m);
-        let (modular_s, recursion_s) = (modular_seconds(n, bits, 1, n), estimated_seconds(n, bits, n));
+        let (modular_s, recursion_s) = (
+            modular_seconds(n, bits, 1, n),
+            estimated_seconds(n, bits, n),
+        );
         if modular_s.min(recursion_s) > EXACT_TIME_BUDGET_SECONDS {
             return Err(too_costly("a", n, bits, budget));
         }
@@ -196,18 +219,33 @@ pub fn faddeev_leverrier_rational(a: &Matrix<BigRational>, with_adjugates: bool)
             faddeev_leverrier(&cleared.m).0
         };
         let l = &cleared.denominator;
-        return Ok((coeffs.into_iter().enumerate().map(|(k, c)| reduced(c, &[(l, k)])).collect(), Vec::new()));
+        return Ok((
+            coeffs
+                .into_iter()
+                .enumerate()
+                .map(|(k, c)| reduced(c, &[(l, k)]))
+                .collect(),
+            Vec::new(),
+        ));
     }
     let reductions = n * n * n + n;
     let cleared = clear_denominators("a", a, n, bit_budget(n, reductions))?;
     let l = &cleared.denominator;
     let (coeffs, adjugates) = faddeev_leverrier(&cleared.m);
-    let coeffs = coeffs.into_iter().enumerate().map(|(k, c)| reduced(c, &[(l, k)])).collect();
+    let coeffs = coeffs
+        .into_iter()
+        .enumerate()
+        .map(|(k, c)| reduced(c, &[(l, k)]))
+        .collect();
     let adjugates = adjugates
         .into_iter()
         .enumerate()
         .map(|(k, nk)| {
-            let data = nk.into_vec().into_iter().map(|v| reduced(v, &[(l, k)])).collect();
+            let data = nk
+                .into_vec()
+                .into_iter()
+                .map(|v| reduced(v, &[(l, k)]))
+                .collect();
             Matrix::from_row_major(n, n, data).expect("n x n")
         })
         .collect();
@@ -221,7 +259,9 @@ pub fn faddeev_leverrier_rational(a: &Matrix<BigRational>, with_adjugates: bool)
 /// ([`modular::transfer_terms`]) or, for a few states with very long entries, from the
 /// integer recursion, whichever the cost estimates find cheaper. Refused like
 /// [`faddeev_leverrier_rational`]; B, C and D are held to the same bit budget.
-pub fn transfer_function_rational(ss: &StateSpace<BigRational>) -> Result<(Vec<BigRational>, Vec<BigRational>)> {
+pub fn transfer_function_rational(
+    ss: &StateSpace<BigRational>,
+) -> Result<(Vec<BigRational>, Vec<BigRational>)> {
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
     let reductions = (p * m + 1) * (n + 1);
     let budget = modular_bit_budget(n, p * m + 1, reductions).max(bit_budget(n, n * (p * m + 1)));
@@ -232,14 +272,23 @@ pub fn transfer_function_rational(ss: &StateSpace<BigRational>) -> Result<(Vec<B
     // Few states with long entries favour the recursion (n⁴ big multiplications), more
     // states the modular route (n³ word operations per prime): take the cheaper estimate.
     let bits = modular::numerator_term_bits(&a.m, &b.m, &c.m);
-    let entry_bits = [&a.m, &b.m, &c.m].iter().map(|x| modular::max_entry_bits(x)).max().unwrap_or(0);
-    let modular_s = modular::estimated_seconds_transfer(n, bits, entry_bits, p, m) + reduction_seconds(n, bits, reductions);
+    let entry_bits = [&a.m, &b.m, &c.m]
+        .iter()
+        .map(|x| modular::max_entry_bits(x))
+        .max()
+        .unwrap_or(0);
+    let modular_s = modular::estimated_seconds_transfer(n, bits, entry_bits, p, m)
+        + reduction_seconds(n, bits, reductions);
     let recursion_s = estimated_seconds(n, entry_bits, n * (p * m + 1));
     if modular_s.min(recursion_s) > EXACT_TIME_BUDGET_SECONDS {
         return Err(too_costly("a", n, entry_bits, budget));
     }
     let cleared = [&a, &b, &c, &d];
-    let (coeffs, terms) = if recursion_s < modular_s { terms_by_recursion(n, cleared) } else { modular::transfer_terms(&a.m, &b.m, &c.m) };
+    let (coeffs, terms) = if recursion_s < modular_s {
+        terms_by_recursion(n, cleared)
+    } else {
+        modular::transfer_terms(&a.m, &b.m, &c.m)
+    };
     Ok(assemble(ss, cleared, &coeffs, &terms))
 }
 
@@ -261,11 +310,24 @@ fn terms_by_recursion(n: usize, [a, b, c, _]: [&Cleared; 4]) -> (Vec<BigInt>, Ve
 }
 
 /// The reduced fractions of the denominator and of `C N_k B + c_{k+1} D`.
-fn assemble(ss: &StateSpace<BigRational>, [a, b, c, d]: [&Cleared; 4], coeffs: &[BigInt], terms: &[BigInt])
-    -> (Vec<BigRational>, Vec<BigRational>) {
+fn assemble(
+    ss: &StateSpace<BigRational>,
+    [a, b, c, d]: [&Cleared; 4],
+    coeffs: &[BigInt],
+    terms: &[BigInt],
+) -> (Vec<BigRational>, Vec<BigRational>) {
     let (n, p, m) = (ss.n_states(), ss.n_outputs(), ss.n_inputs());
-    let (la, lb, lc, ld) = (&a.denominator, &b.denominator, &c.denominator, &d.denominator);
-    let den: Vec<BigRational> = coeffs.iter().enumerate().map(|(k, v)| reduced(v.clone(), &[(la, k)])).collect();
+    let (la, lb, lc, ld) = (
+        &a.denominator,
+        &b.denominator,
+        &c.denominator,
+        &d.denominator,
+    );
+    let den: Vec<BigRational> = coeffs
+        .iter()
+        .enumerate()
+        .map(|(k, v)| reduced(v.clone(), &[(la, k)]))
+        .collect();
     let mut num = vec![BigRational::zero(); p * m * (n + 1)];
     // Over the common denominator Lc·Lb·Ld·La^(k+1):
     // C N_k B + c_{k+1} D = (M_C N_k M_B · Ld·La + c_{k+1}(M_A) · M_D · Lc·Lb) / (Lc Lb Ld La^(k+1)).
@@ -276,8 +338,10 @@ fn assemble(ss: &StateSpace<BigRational>, [a, b, c, d]: [&Cleared; 4], coeffs: &
             let entry = i * m + j;
             num[entry * (n + 1)] = ss.d.get(i, j).clone();
             for k in 0..n {
-                let numer = &terms[entry * n + k] * &cnb_factor + &coeffs[k + 1] * &d_factor * d.m.get(i, j);
-                num[entry * (n + 1) + k + 1] = reduced(numer, &[(la, k + 1), (lc, 1), (lb, 1), (ld, 1)]);
+                let numer = &terms[entry * n + k] * &cnb_factor
+                    + &coeffs[k + 1] * &d_factor * d.m.get(i, j);
+                num[entry * (n + 1) + k + 1] =
+                    reduced(numer, &[(la, k + 1), (lc, 1), (lb, 1), (ld, 1)]);
             }
         }
     }
@@ -300,7 +364,21 @@ mod tests {
     #[test]
     fn agrees_with_the_rational_recursion() {
         // (identity) both compute the same reduced fractions.
-        let a = matrix(3, 3, &[(1, 3), (-2, 7), (0, 1), (5, 2), (1, 1), (-1, 6), (3, 11), (0, 1), (-4, 9)]);
+        let a = matrix(
+            3,
+            3,
+            &[
+                (1, 3),
+                (-2, 7),
+                (0, 1),
+                (5, 2),
+                (1, 1),
+                (-1, 6),
+                (3, 11),
+                (0, 1),
+                (-4, 9),
+            ],
+        );
         let b = matrix(3, 2, &[(1, 2), (0, 1), (1, 5), (-3, 4), (0, 1), (2, 3)]);
         let c = matrix(1, 3, &[(7, 5), (-1, 3), (1, 8)]);
         let d = matrix(1, 2, &[(1, 7), (-2, 9)]);
@@ -322,15 +400,27 @@ mod tests {
         // BigRational recursion's C N_k B + c_k D.
         let mut seed = 99u64;
         let mut next = move |modulus: i64| {
-            seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
             ((seed >> 33) as i64) % modulus
         };
-        let mut fraction = |zero: bool| if zero { q(0, 1) } else { q(next(41) - 20, next(12) + 1) };
+        let mut fraction = |zero: bool| {
+            if zero {
+                q(0, 1)
+            } else {
+                q(next(41) - 20, next(12) + 1)
+            }
+        };
         let (n, p, m) = (7, 2, 3);
-        let a = Matrix::from_row_major(n, n, (0..n * n).map(|_| fraction(false)).collect()).unwrap();
-        let b = Matrix::from_row_major(n, m, (0..n * m).map(|k| fraction(k % m == 1)).collect()).unwrap();
-        let c = Matrix::from_row_major(p, n, (0..p * n).map(|k| fraction(k / n == 1)).collect()).unwrap();
-        let mut d = Matrix::from_row_major(p, m, (0..p * m).map(|_| fraction(false)).collect()).unwrap();
+        let a =
+            Matrix::from_row_major(n, n, (0..n * n).map(|_| fraction(false)).collect()).unwrap();
+        let b = Matrix::from_row_major(n, m, (0..n * m).map(|k| fraction(k % m == 1)).collect())
+            .unwrap();
+        let c = Matrix::from_row_major(p, n, (0..p * n).map(|k| fraction(k / n == 1)).collect())
+            .unwrap();
+        let mut d =
+            Matrix::from_row_major(p, m, (0..p * m).map(|_| fraction(false)).collect()).unwrap();
         d.set(0, 0, q(1, 1));
         let ss = StateSpace::new(a, b, c, d).unwrap();
         let (num_ref, den_ref) = transfer_function(&ss);
@@ -343,7 +433,10 @@ mod tests {
             .collect();
         let parts = [&cleared[0], &cleared[1], &cleared[2], &cleared[3]];
         let (coeffs, terms) = terms_by_recursion(n, parts);
-        assert_eq!(assemble(&ss, parts, &coeffs, &terms), (num_ref.clone(), den_ref.clone()));
+        assert_eq!(
+            assemble(&ss, parts, &coeffs, &terms),
+            (num_ref.clone(), den_ref.clone())
+        );
         let (coeffs, terms) = modular::transfer_terms(&cleared[0].m, &cleared[1].m, &cleared[2].m);
         assert_eq!(assemble(&ss, parts, &coeffs, &terms), (num_ref, den_ref));
     }

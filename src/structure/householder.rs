@@ -21,13 +21,21 @@ impl Reflector {
         let norm = x.iter().map(|v| v * v).sum::<f64>().sqrt();
         let tail = x[1..].iter().map(|v| v * v).sum::<f64>();
         if norm == 0.0 || tail == 0.0 {
-            return Reflector { offset, v: vec![0.0; x.len()], tau: 0.0 };
+            return Reflector {
+                offset,
+                v: vec![0.0; x.len()],
+                tau: 0.0,
+            };
         }
         let alpha = if x[0] >= 0.0 { -norm } else { norm };
         let mut v = x.to_vec();
         v[0] -= alpha;
         let vv = v.iter().map(|e| e * e).sum::<f64>();
-        Reflector { offset, v, tau: 2.0 / vv }
+        Reflector {
+            offset,
+            v,
+            tau: 2.0 / vv,
+        }
     }
 
     /// `M ← H M` (rows `offset..` of M).

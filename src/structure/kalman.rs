@@ -34,7 +34,10 @@
 //! P. Van Dooren, IEEE Trans. Automat. Control 26 (1981).
 
 use super::minimal::check_model;
-use super::staircase::{check_tol, controllability_staircase, default_tol, frobenius, leading_part, observability_staircase};
+use super::staircase::{
+    check_tol, controllability_staircase, default_tol, frobenius, leading_part,
+    observability_staircase,
+};
 use super::{columns, condition_number, from_faer, hstack, to_faer};
 use crate::balance::balance_model;
 use crate::error::{ModelError, Result};
@@ -58,7 +61,9 @@ fn leading_left_vectors(m: &Matrix<f64>, k: usize) -> Result<Matrix<f64>> {
     if k == 0 || m.cols() == 0 {
         return Ok(Matrix::zeros(m.rows(), 0));
     }
-    let svd = to_faer(m).svd().map_err(|_| ModelError::NoConvergence { routine: "the SVD in the Kalman decomposition" })?;
+    let svd = to_faer(m).svd().map_err(|_| ModelError::NoConvergence {
+        routine: "the SVD in the Kalman decomposition",
+    })?;
     Ok(columns(&from_faer(svd.U()), 0, k))
 }
 
@@ -68,7 +73,9 @@ fn complement(w: &Matrix<f64>) -> Result<Matrix<f64>> {
     if w.cols() == 0 {
         return Ok(Matrix::identity(n));
     }
-    let svd = to_faer(w).svd().map_err(|_| ModelError::NoConvergence { routine: "the SVD in the Kalman decomposition" })?;
+    let svd = to_faer(w).svd().map_err(|_| ModelError::NoConvergence {
+        routine: "the SVD in the Kalman decomposition",
+    })?;
     Ok(columns(&from_faer(svd.U()), w.cols().min(n), n))
 }
 
@@ -152,11 +159,25 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
         let lu = to_faer(&t).partial_piv_lu();
         let at = lu.solve(to_faer(&ss.a.matmul(&t)));
         let bt = lu.solve(to_faer(&ss.b));
-        (from_faer(at.as_ref()), from_faer(bt.as_ref()), ss.c.matmul(&t))
+        (
+            from_faer(at.as_ref()),
+            from_faer(bt.as_ref()),
+            ss.c.matmul(&t),
+        )
     };
     // Zero what the pattern says is zero, and report the largest such entry.
     let [k1, k2, k3, _] = sizes;
-    let part = |i: usize| if i < k1 { 0 } else if i < k1 + k2 { 1 } else if i < k1 + k2 + k3 { 2 } else { 3 };
+    let part = |i: usize| {
+        if i < k1 {
+            0
+        } else if i < k1 + k2 {
+            1
+        } else if i < k1 + k2 + k3 {
+            2
+        } else {
+            3
+        }
+    };
     let a_zero = |pi: usize, pj: usize| match pj {
         0 => pi >= 2,
         1 => pi != 1,
@@ -164,7 +185,11 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
         _ => pi == 0 || pi == 2,
     };
     let mut residual: f64 = 0.0;
-    let (na, nb, nc_norm) = (frobenius(&ss.a).max(f64::MIN_POSITIVE), frobenius(&ss.b).max(f64::MIN_POSITIVE), frobenius(&ss.c).max(f64::MIN_POSITIVE));
+    let (na, nb, nc_norm) = (
+        frobenius(&ss.a).max(f64::MIN_POSITIVE),
+        frobenius(&ss.b).max(f64::MIN_POSITIVE),
+        frobenius(&ss.c).max(f64::MIN_POSITIVE),
+    );
     for i in 0..n {
         for j in 0..n {
             if a_zero(part(i), part(j)) {
@@ -187,11 +212,21 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
             }
         }
     }
-    if [&a, &b, &c].iter().any(|m| m.as_slice().iter().any(|v| !v.is_finite())) {
-        return Err(ModelError::Overflow { what: "the Kalman decomposition".into() });
+    if [&a, &b, &c]
+        .iter()
+        .any(|m| m.as_slice().iter().any(|v| !v.is_finite()))
+    {
+        return Err(ModelError::Overflow {
+            what: "the Kalman decomposition".into(),
+        });
     }
     Ok(KalmanDecomposition {
-        realization: StateSpace { a, b, c, d: ss.d.clone() },
+        realization: StateSpace {
+            a,
+            b,
+            c,
+            d: ss.d.clone(),
+        },
         t,
         sizes,
         condition,

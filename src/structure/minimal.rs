@@ -27,7 +27,10 @@
 //! R. E. Kalman, "Mathematical description of linear dynamical systems", SIAM J. Control 1
 //! (1963). P. Van Dooren, IEEE Trans. Automat. Control 26 (1981).
 
-use super::staircase::{check_tol, controllability_staircase, default_tol, leading_part, observability_staircase, Staircase};
+use super::staircase::{
+    check_tol, controllability_staircase, default_tol, leading_part, observability_staircase,
+    Staircase,
+};
 use crate::balance::balance_model;
 use crate::error::{require_finite, Result};
 use crate::state_space::StateSpace;
@@ -58,7 +61,12 @@ pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Min
     let so = observability_staircase(&a1, Some(&b1), &c1, Some(tol_o))?;
     let (a2, b2, c2) = leading_part(&so.a, &so.b, so.c.as_ref().expect("carried"), so.rank);
     Ok(Minimal {
-        realization: StateSpace { a: a2, b: b2, c: c2, d: ss.d.clone() },
+        realization: StateSpace {
+            a: a2,
+            b: b2,
+            c: c2,
+            d: ss.d.clone(),
+        },
         controllability: sc,
         observability: so,
     })

@@ -18,8 +18,14 @@ use crate::matrix::Matrix;
 /// Columns `from..to` of `m`.
 pub(crate) fn columns(m: &Matrix<f64>, from: usize, to: usize) -> Matrix<f64> {
     let (rows, width) = (m.rows(), to - from);
-    Matrix::from_row_major(rows, width, (0..rows * width).map(|x| *m.get(x / width, from + x % width)).collect())
-        .expect("column block")
+    Matrix::from_row_major(
+        rows,
+        width,
+        (0..rows * width)
+            .map(|x| *m.get(x / width, from + x % width))
+            .collect(),
+    )
+    .expect("column block")
 }
 
 /// `[x | y | ...]` side by side (all with the same number of rows).
@@ -54,7 +60,13 @@ pub(crate) fn condition_number(m: &Matrix<f64>) -> crate::error::Result<f64> {
     }
     let s = to_faer(m)
         .singular_values()
-        .map_err(|_| crate::error::ModelError::NoConvergence { routine: "the SVD for a condition number" })?;
+        .map_err(|_| crate::error::ModelError::NoConvergence {
+            routine: "the SVD for a condition number",
+        })?;
     let last = *s.last().expect("nonempty");
-    Ok(if last > 0.0 { s[0] / last } else { f64::INFINITY })
+    Ok(if last > 0.0 {
+        s[0] / last
+    } else {
+        f64::INFINITY
+    })
 }

@@ -23,9 +23,9 @@
 //! C.-T. Chen, *Linear System Theory and Design*, 3rd ed., Oxford 1999, §7.2 (uniqueness
 //! of minimal realizations up to similarity).
 
+use super::condition_number;
 use super::minimal::check_model;
 use super::staircase::{check_tol, frobenius, is_controllable, is_observable};
-use super::condition_number;
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
 use crate::state_space::StateSpace;
@@ -50,12 +50,21 @@ fn check_minimal(ss: &StateSpace<f64>, arg: &'static str) -> Result<()> {
             (false, true) => "not controllable",
             _ => "not observable",
         };
-        return Err(ModelError::BadValue { arg, detail: format!("the realization is not minimal ({what}); reduce it with minimal_realization first") });
+        return Err(ModelError::BadValue {
+            arg,
+            detail: format!(
+                "the realization is not minimal ({what}); reduce it with minimal_realization first"
+            ),
+        });
     }
     Ok(())
 }
 
-pub fn similarity(r1: &StateSpace<f64>, r2: &StateSpace<f64>, tol: Option<f64>) -> Result<Similarity> {
+pub fn similarity(
+    r1: &StateSpace<f64>,
+    r2: &StateSpace<f64>,
+    tol: Option<f64>,
+) -> Result<Similarity> {
     check_model(r1)?;
     check_model(r2)?;
     check_tol(tol)?;
@@ -65,26 +74,50 @@ pub fn similarity(r1: &StateSpace<f64>, r2: &StateSpace<f64>, tol: Option<f64>) 
         return Err(ModelError::Shape {
             arg: "r2",
             expected: format!("{n} states, {m} inputs and {p} outputs like r1"),
-            found: format!("{} states, {} inputs and {} outputs", r2.n_states(), r2.n_inputs(), r2.n_outputs()),
+            found: format!(
+                "{} states, {} inputs and {} outputs",
+                r2.n_states(),
+                r2.n_inputs(),
+                r2.n_outputs()
+            ),
         });
     }
     if n > MAX_ORDER {
-        return Err(ModelError::TooLarge { arg: "r1", detail: format!("similarity is limited to {MAX_ORDER} states, found {n}") });
+        return Err(ModelError::TooLarge {
+            arg: "r1",
+            detail: format!("similarity is limited to {MAX_ORDER} states, found {n}"),
+        });
     }
     check_minimal(r1, "r1")?;
     check_minimal(r2, "r2")?;
 
     let d_residual = {
-        let diff: f64 = r1.d.as_slice().iter().zip(r2.d.as_slice()).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
+        let diff: f64 =
+            r1.d.as_slice()
+                .iter()
+                .zip(r2.d.as_slice())
+                .map(|(x, y)| (x - y) * (x - y))
+                .sum::<f64>()
+                .sqrt();
         let scale = frobenius(&r1.d).max(frobenius(&r2.d));
-        if scale > 0.0 { diff / scale } else { diff }
+        if scale > 0.0 {
+            diff / scale
+        } else {
+            diff
+        }
     };
     let t = if n == 0 {
         Matrix::zeros(0, 0)
     } else {
-        let sa = frobenius(&r1.a).max(frobenius(&r2.a)).max(f64::MIN_POSITIVE);
-        let sb = frobenius(&r1.b).max(frobenius(&r2.b)).max(f64::MIN_POSITIVE);
-        let sc = frobenius(&r1.c).max(frobenius(&r2.c)).max(f64::MIN_POSITIVE);
+        let sa = frobenius(&r1.a)
+            .max(frobenius(&r2.a))
+            .max(f64::MIN_POSITIVE);
+        let sb = frobenius(&r1.b)
+            .max(frobenius(&r2.b))
+            .max(f64::MIN_POSITIVE);
+        let sc = frobenius(&r1.c)
+            .max(frobenius(&r2.c))
+            .max(f64::MIN_POSITIVE);
         let unknowns = n * n; // T[i][j] at i*n + j
         let rows = n * n + n * m + p * n;
         let mut sys = Mat::<f64>::zeros(rows, unknowns);
@@ -123,17 +156,38 @@ pub fn similarity(r1: &StateSpace<f64>, r2: &StateSpace<f64>, tol: Option<f64>) 
         Matrix::from_row_major(n, n, (0..unknowns).map(|k| x[(k, 0)]).collect()).expect("n x n")
     };
     if t.as_slice().iter().any(|v| !v.is_finite()) {
-        return Err(ModelError::BadValue { arg: "r2", detail: "the realizations are not similar (no finite transformation)".into() });
+        return Err(ModelError::BadValue {
+            arg: "r2",
+            detail: "the realizations are not similar (no finite transformation)".into(),
+        });
     }
     let rel = |x: &Matrix<f64>, y: &Matrix<f64>, scale: f64| {
-        let diff: f64 = x.as_slice().iter().zip(y.as_slice()).map(|(u, v)| (u - v) * (u - v)).sum::<f64>().sqrt();
-        if scale > 0.0 { diff / scale } else { diff }
+        let diff: f64 = x
+            .as_slice()
+            .iter()
+            .zip(y.as_slice())
+            .map(|(u, v)| (u - v) * (u - v))
+            .sum::<f64>()
+            .sqrt();
+        if scale > 0.0 {
+            diff / scale
+        } else {
+            diff
+        }
     };
     let nt = frobenius(&t);
     let residuals = [
-        rel(&r1.a.matmul(&t), &t.matmul(&r2.a), frobenius(&r1.a).max(frobenius(&r2.a)) * nt),
+        rel(
+            &r1.a.matmul(&t),
+            &t.matmul(&r2.a),
+            frobenius(&r1.a).max(frobenius(&r2.a)) * nt,
+        ),
         rel(&t.matmul(&r2.b), &r1.b, frobenius(&r1.b)),
-        rel(&r1.c.matmul(&t), &r2.c, frobenius(&r2.c).max(frobenius(&r1.c) * nt)),
+        rel(
+            &r1.c.matmul(&t),
+            &r2.c,
+            frobenius(&r2.c).max(frobenius(&r1.c) * nt),
+        ),
         d_residual,
     ];
     let cond = condition_number(&t)?;

@@ -92,7 +92,11 @@ fn range_scale(ms: &[&Matrix<f64>]) -> f64 {
 }
 
 fn scaled(m: &Matrix<f64>, s: f64) -> Matrix<f64> {
-    if s == 1.0 { m.clone() } else { m.map(|v| v * s) }
+    if s == 1.0 {
+        m.clone()
+    } else {
+        m.map(|v| v * s)
+    }
 }
 
 /// `m / s`, refused when an entry leaves the float64 range (the true value is not representable).
@@ -109,15 +113,18 @@ fn require_representable(values: &[f64], what: &str) -> Result<()> {
     if values.iter().all(|v| v.is_finite()) {
         Ok(())
     } else {
-        Err(ModelError::Overflow { what: what.to_string() })
+        Err(ModelError::Overflow {
+            what: what.to_string(),
+        })
     }
 }
 
 pub(crate) fn check_tol(tol: Option<f64>) -> Result<()> {
     match tol {
-        Some(t) if !(t.is_finite() && t >= 0.0) => {
-            Err(ModelError::BadValue { arg: "tol", detail: format!("must be finite and >= 0, found {t}") })
-        }
+        Some(t) if !(t.is_finite() && t >= 0.0) => Err(ModelError::BadValue {
+            arg: "tol",
+            detail: format!("must be finite and >= 0, found {t}"),
+        }),
         _ => Ok(()),
     }
 }
@@ -132,10 +139,18 @@ pub(crate) fn check_pair(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Matrix<f64
     require_finite("c", ss.c.as_slice())
 }
 
-fn thin_svd(rows: usize, cols: usize, at: impl Fn(usize, usize) -> f64) -> Result<(Vec<f64>, Mat<f64>)> {
+fn thin_svd(
+    rows: usize,
+    cols: usize,
+    at: impl Fn(usize, usize) -> f64,
+) -> Result<(Vec<f64>, Mat<f64>)> {
     let z = Mat::from_fn(rows, cols, at);
-    let svd = z.thin_svd().map_err(|_| ModelError::NoConvergence { routine: "the SVD of a staircase step" })?;
-    let s: Vec<f64> = (0..rows.min(cols)).map(|i| svd.S().column_vector()[i]).collect();
+    let svd = z.thin_svd().map_err(|_| ModelError::NoConvergence {
+        routine: "the SVD of a staircase step",
+    })?;
+    let s: Vec<f64> = (0..rows.min(cols))
+        .map(|i| svd.S().column_vector()[i])
+        .collect();
     Ok((s, svd.U().to_owned()))
 }
 
@@ -145,7 +160,12 @@ fn thin_svd(rows: usize, cols: usize, at: impl Fn(usize, usize) -> f64) -> Resul
 /// (A and B by one factor, C by its own), which changes no decision: the reduction is
 /// homogeneous in (A, B, tol) and linear in C. Results are scaled back; one that is not
 /// representable there is refused with `Overflow` rather than returned as infinity.
-pub fn controllability_staircase(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Matrix<f64>>, tol: Option<f64>) -> Result<Staircase> {
+pub fn controllability_staircase(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: Option<&Matrix<f64>>,
+    tol: Option<f64>,
+) -> Result<Staircase> {
     check_pair(a, b, c)?;
     check_tol(tol)?;
     let s_ab = range_scale(&[a, b]);
@@ -158,17 +178,27 @@ pub fn controllability_staircase(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Ma
     let mut st = reduce(&a_s, &b_s, c_s.as_ref(), tol_s)?;
     st.a = unscaled(st.a, s_ab, "the transformed A of the staircase form")?;
     st.b = unscaled(st.b, s_ab, "the transformed B of the staircase form")?;
-    st.c = st.c.map(|c| unscaled(c, s_c, "the transformed C of the staircase form")).transpose()?;
+    st.c =
+        st.c.map(|c| unscaled(c, s_c, "the transformed C of the staircase form"))
+            .transpose()?;
     for step in &mut st.steps {
         step.singular_values.iter_mut().for_each(|v| *v /= s_ab);
-        require_representable(&step.singular_values, "the singular values of a staircase step")?;
+        require_representable(
+            &step.singular_values,
+            "the singular values of a staircase step",
+        )?;
     }
     st.tol = tol.unwrap_or(st.tol / s_ab);
     Ok(st)
 }
 
 /// One staircase reduction with step sizes decided by `tol`.
-fn reduce(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Matrix<f64>>, tol: f64) -> Result<Staircase> {
+fn reduce(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: Option<&Matrix<f64>>,
+    tol: f64,
+) -> Result<Staircase> {
     let (n, m) = (a.rows(), b.cols());
     let (mut a, mut b, mut c) = (a.clone(), b.clone(), c.cloned());
     let mut q = Matrix::identity(n);
@@ -186,15 +216,23 @@ fn reduce(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Matrix<f64>>, tol: f64) -
         let col0 = if first { 0 } else { prev };
         let (sigma, u) = thin_svd(rows, width, |i, j| *source.get(reached + i, col0 + j))?;
         let r = sigma.iter().filter(|&&s| s > tol).count();
-        steps.push(StepRecord { singular_values: sigma, kept: r });
+        steps.push(StepRecord {
+            singular_values: sigma,
+            kept: r,
+        });
 
         // Reflections taking span(U_r) onto the first r axes of the remaining states.
-        let mut basis = Matrix::from_row_major(rows, r, (0..rows * r).map(|k| u[(k / r, k % r)]).collect()).expect("rows x r");
+        let mut basis =
+            Matrix::from_row_major(rows, r, (0..rows * r).map(|k| u[(k / r, k % r)]).collect())
+                .expect("rows x r");
         for j in 0..r {
             let x: Vec<f64> = (j..rows).map(|i| *basis.get(i, j)).collect();
             let local = Reflector::annihilating(j, &x);
             local.apply_left(&mut basis);
-            let h = Reflector { offset: reached + j, ..local };
+            let h = Reflector {
+                offset: reached + j,
+                ..local
+            };
             h.apply_left(&mut a);
             h.apply_right(&mut a);
             h.apply_left(&mut b);
@@ -217,17 +255,32 @@ fn reduce(a: &Matrix<f64>, b: &Matrix<f64>, c: Option<&Matrix<f64>>, tol: f64) -
         prev = reached;
         reached += r;
     }
-    Ok(Staircase { a, b, c, q, rank: reached, blocks, steps, tol })
+    Ok(Staircase {
+        a,
+        b,
+        c,
+        q,
+        rank: reached,
+        blocks,
+        steps,
+        tol,
+    })
 }
 
 /// The observability staircase: `Qᵀ A Q = [[A_o, 0], [A_21, A_u]]`, `C Q = [C_o, 0]`, by
 /// duality (the controllability staircase of `(Aᵀ, Cᵀ)`, transposed). The default tol is
 /// `n² eps max(‖A‖_F, ‖C‖_F)`.
-pub fn observability_staircase(a: &Matrix<f64>, b: Option<&Matrix<f64>>, c: &Matrix<f64>, tol: Option<f64>) -> Result<Staircase> {
+pub fn observability_staircase(
+    a: &Matrix<f64>,
+    b: Option<&Matrix<f64>>,
+    c: &Matrix<f64>,
+    tol: Option<f64>,
+) -> Result<Staircase> {
     let b = b.cloned().unwrap_or_else(|| Matrix::zeros(a.rows(), 0));
     // Check in the caller's orientation so messages name the caller's arguments.
     check_pair(a, &b, Some(c))?;
-    let dual = controllability_staircase(&a.transpose(), &c.transpose(), Some(&b.transpose()), tol)?;
+    let dual =
+        controllability_staircase(&a.transpose(), &c.transpose(), Some(&b.transpose()), tol)?;
     Ok(transpose_dual(dual))
 }
 
@@ -256,13 +309,24 @@ pub fn is_observable(a: &Matrix<f64>, c: &Matrix<f64>, tol: Option<f64>) -> Resu
 }
 
 /// The leading `k × k`, `k × m`, `p × k` parts (the reduced subsystem after a staircase).
-pub(crate) fn leading_part(a: &Matrix<f64>, b: &Matrix<f64>, c: &Matrix<f64>, k: usize) -> (Matrix<f64>, Matrix<f64>, Matrix<f64>) {
+pub(crate) fn leading_part(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: &Matrix<f64>,
+    k: usize,
+) -> (Matrix<f64>, Matrix<f64>, Matrix<f64>) {
     let sub = |m: &Matrix<f64>, rows: usize, cols: usize| {
-        Matrix::from_row_major(rows, cols, (0..rows * cols).map(|x| *m.get(x / cols, x % cols)).collect()).expect("sub")
+        Matrix::from_row_major(
+            rows,
+            cols,
+            (0..rows * cols)
+                .map(|x| *m.get(x / cols, x % cols))
+                .collect(),
+        )
+        .expect("sub")
     };
     (sub(a, k, k), sub(b, k, b.cols()), sub(c, c.rows(), k))
 }
-
 
 #[cfg(test)]
 mod tests {
@@ -297,7 +361,12 @@ mod tests {
         let b = Matrix::zeros(2, 0);
         let s = controllability_staircase(&a, &b, None, None).unwrap();
         let expected = 4.0 * f64::EPSILON * BIG * 2f64.sqrt();
-        assert!((s.tol - expected).abs() <= 1e-15 * expected, "{} vs {}", s.tol, expected);
+        assert!(
+            (s.tol - expected).abs() <= 1e-15 * expected,
+            "{} vs {}",
+            s.tol,
+            expected
+        );
     }
 
     #[test]
@@ -308,7 +377,13 @@ mod tests {
         let c = m(1, 3, &[0.0, 1.0, -1.0]);
         let k = 2f64.powi(700);
         let plain = controllability_staircase(&a, &b, Some(&c), None).unwrap();
-        let big = controllability_staircase(&a.map(|v| v * k), &b.map(|v| v * k), Some(&c.map(|v| v / k)), None).unwrap();
+        let big = controllability_staircase(
+            &a.map(|v| v * k),
+            &b.map(|v| v * k),
+            Some(&c.map(|v| v / k)),
+            None,
+        )
+        .unwrap();
         assert_eq!(plain.q, big.q);
         assert_eq!(plain.blocks, big.blocks);
         assert_eq!(plain.a.map(|v| v * k), big.a);
