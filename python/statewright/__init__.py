@@ -28,6 +28,13 @@ from ._api.structure import (
     observability_staircase,
     similarity,
 )
+from ._api.time import (
+    frequency_response,
+    frequency_response_batch,
+    to_continuous,
+    to_continuous_batch,
+    to_discrete,
+)
 from ._api.transfer_matrix import realize_transfer_matrix
 from ._core import ModelError
 from ._results.realization import Realization
@@ -61,4 +68,9 @@ __all__ = [
     "balanced_realization",
     "realize_expression",
     "from_scipy",
+    "to_discrete",
+    "to_continuous",
+    "frequency_response",
+    "frequency_response_batch",
+    "to_continuous_batch",
 ]
