@@ -280,3 +280,20 @@ def test_to_continuous_batch_names_the_bad_model():
     stack[0][2] = np.diag([0.5, -0.3])
     with pytest.raises(sw.ModelError, match="model 2"):
         sw.to_continuous_batch(*stack, 0.2)
+
+
+def test_time_base_survives_transform_pickle_and_display():
+    # Identity: the time base is part of the model; similarity and pickling keep it.
+    import pickle
+
+    h = np.array([0.0] + [0.5 ** (k - 1) for k in range(1, 12)])  # 1 / (z - 0.5)
+    r = sw.realize_markov(h, sample_time=0.25)
+    assert r.sample_time == 0.25
+    assert sw.realize_markov(h).sample_time == 1.0
+    assert r.transform([[2.0]]).sample_time == 0.25
+    assert pickle.loads(pickle.dumps(r)).sample_time == 0.25
+    assert "sample_time=0.25" in repr(r) and r"T = 0.25" in r._repr_latex_()
+    back = r.to_continuous()
+    assert np.isclose(back.a[0, 0], np.log(0.5) / 0.25)  # A = log(A_d) / T (identity)
+    with pytest.raises(sw.ModelError, match="sample_time"):
+        sw.Realization([[1.0]], [[1.0]], [[1.0]], [[0.0]], sample_time=-1.0)
