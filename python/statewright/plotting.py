@@ -338,7 +338,7 @@ def pole_zero_map(
                 p.real,
                 p.imag,
                 ls="none",
-                marker="x",
+                marker=_MARKERS[k % len(_MARKERS)],
                 ms=9,
                 mew=1.8,
                 color=colour,
