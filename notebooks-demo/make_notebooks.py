@@ -47,8 +47,7 @@ def canonical_forms() -> nbformat.NotebookNode:
             "frequency response."
         ),
         new_code_cell(
-            SETUP
-            + "from scipy import signal\nimport sympy as sp\n\nnum, den = [1.8, 7.4], [0.4, 2.2, 5.3, 4.1]"
+            SETUP + "from scipy import signal\nimport sympy as sp\n\nnum, den = [1.8, 7.4], [0.4, 2.2, 5.3, 4.1]"
         ),
         new_markdown_cell(
             "**Is the fit minimal?** Exactly: the greatest common divisor of numerator and denominator, "
@@ -98,9 +97,7 @@ def canonical_forms() -> nbformat.NotebookNode:
             "assert sp.simplify(G_state - G_given) == 0\n"
             "re"
         ),
-        new_markdown_cell(
-            "Every form, with its poles and the transfer function recovered by Faddeev–LeVerrier:"
-        ),
+        new_markdown_cell("Every form, with its poles and the transfer function recovered by Faddeev–LeVerrier:"),
         new_code_cell(
             "forms = ['controllable_canonical', 'observable_canonical', 'controller', 'observer',\n"
             "         'controllability', 'observability', 'modal']\n"
@@ -169,7 +166,8 @@ def hidden_modes() -> nbformat.NotebookNode:
             "# Decoupled construction (hidden below): 9 controllable+observable states, 1 controllable but\n"
             "# unobservable (drive thermal state), 2 uncontrollable but observable (idler resonance).\n"
             "blocks = [np.array([[-0.2, 8.0], [-8.0, -0.2]]), np.array([[-1.0, 3.0], [-3.0, -1.0]]),\n"
-            "          np.array([[-5.0]]), np.array([[-0.5, 1.5], [-1.5, -0.5]]), np.array([[-12.0, 2.0], [-2.0, -12.0]])]\n"
+            "          np.array([[-5.0]]), np.array([[-0.5, 1.5], [-1.5, -0.5]]),\n"
+            "          np.array([[-12.0, 2.0], [-2.0, -12.0]])]\n"
             "co = np.zeros((9, 9)); k = 0\n"
             "for blk in blocks:\n"
             "    n_blk = blk.shape[0]; co[k:k+n_blk, k:k+n_blk] = blk; k += n_blk\n"
@@ -179,7 +177,8 @@ def hidden_modes() -> nbformat.NotebookNode:
             "a0[9, :9] = 0.3 * rng.standard_normal(9)          # heated by the drive currents\n"
             "a0[:9, 10:] = 0.2 * rng.standard_normal((9, 2))   # the resonance shakes the web (observable)\n"
             "b0 = np.zeros((12, 2)); b0[:10] = rng.standard_normal((10, 2))\n"
-            "c0 = np.zeros((2, 12)); c0[:, :9] = rng.standard_normal((2, 9)); c0[:, 10:] = rng.standard_normal((2, 2))\n"
+            "c0 = np.zeros((2, 12)); c0[:, :9] = rng.standard_normal((2, 9))\n"
+            "c0[:, 10:] = rng.standard_normal((2, 2))\n"
             "# Physical coordinates: an invertible mixing of all states. Time in seconds.\n"
             "t_phys = np.linalg.qr(rng.standard_normal((12, 12)))[0] @ np.diag(np.linspace(1, 3, 12))\n"
             "a = np.linalg.solve(t_phys, a0 @ t_phys); b = np.linalg.solve(t_phys, b0); c = c0 @ t_phys\n"
@@ -219,7 +218,8 @@ def hidden_modes() -> nbformat.NotebookNode:
             "fig, (ax1, ax2) = plt.subplots(1, 2, figsize=(10, 4))\n"
             "ax1.spy(np.abs(s.a) > 1e-12 * np.abs(s.a).max(), markersize=6, color='#1f3b73')\n"
             "ax1.axhline(s.rank - 0.5, color='#c8553d'); ax1.axvline(s.rank - 0.5, color='#c8553d')\n"
-            "ax1.set_title('nonzero pattern of $Q^T A Q$'); ax1.set_xlabel('state (column)'); ax1.set_ylabel('state (row)')\n"
+            "ax1.set_title('nonzero pattern of $Q^T A Q$')\n"
+            "ax1.set_xlabel('state (column)'); ax1.set_ylabel('state (row)')\n"
             "ax1.grid(False)\n"
             "for i, sv in enumerate(s.singular_values):\n"
             "    ax2.semilogy([i + 1] * len(sv), np.maximum(sv, 1e-18), 'o', color='#1f3b73',\n"
@@ -360,8 +360,10 @@ def fleet() -> nbformat.NotebookNode:
             "default_orders = np.array([m.n_states for m, _ in results])\n"
             "print('default tol', results[0][0].info['tol'][1], '-> minimal orders',\n"
             "      dict(zip(*np.unique(default_orders, return_counts=True))))\n"
-            "print('statistic of the units without a near zero: from', stat[~near].min().round(3), 'to', stat[~near].max().round(3))\n"
-            "print('statistic of the units with a near zero:    from', f'{stat[near].min():.1e}', 'to', f'{stat[near].max():.1e}')"
+            "print('statistic of the units without a near zero: from', stat[~near].min().round(3),\n"
+            "      'to', stat[~near].max().round(3))\n"
+            "print('statistic of the units with a near zero:    from', f'{stat[near].min():.1e}',\n"
+            "      'to', f'{stat[near].max():.1e}')"
         ),
         new_markdown_cell(
             "The fleet's distribution of that statistic, grouped by how close the zero really is. The "
@@ -501,7 +503,8 @@ def identified_impulse_response() -> nbformat.NotebookNode:
             "print('singular values of the data Hankel matrix:', np.round(data_sv[:order + 2], 4))\n"
             "print('Hankel singular values of the model:      ', np.round(model_hsv, 4))\n"
             "fig, ax = plt.subplots(figsize=(6.4, 4))\n"
-            "ax.semilogy(np.arange(1, 21), data_sv[:20], 'o-', mfc='none', label='data Hankel matrix (noisy samples)')\n"
+            "ax.semilogy(np.arange(1, 21), data_sv[:20], 'o-', mfc='none',\n"
+            "            label='data Hankel matrix (noisy samples)')\n"
             "ax.semilogy(np.arange(1, order + 1), model_hsv, 'x--', ms=8, label=f'identified model ({order} states)')\n"
             "ax.axvline(order + 0.5, color='0.4', ls=':', label=f'chosen order {order}')\n"
             "ax.axhline(5e-3, color='black', ls='--', lw=1, label='tol = 5e-3')\n"
@@ -542,9 +545,7 @@ def identified_impulse_response() -> nbformat.NotebookNode:
             "The bound against the actual error for every order the model could be truncated to, with "
             "the lower bound $\\sigma_{r+1}$ that no model of order $r$ can beat:"
         ),
-        new_code_cell(
-            "fig = plotting.reduction_error_plot(r_full, sample_time=T, gain_unit='K/kW')"
-        ),
+        new_code_cell("fig = plotting.reduction_error_plot(r_full, sample_time=T, gain_unit='K/kW')"),
         new_markdown_cell(
             "Frequency responses up to the Nyquist frequency $\\pi/T$ (singular values: two heaters, two "
             "zones) and impulse responses of the identified and the truncated model against the samples:"

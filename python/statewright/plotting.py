@@ -75,9 +75,7 @@ def _pyplot() -> Any:
     try:
         import matplotlib.pyplot as plt
     except ImportError as exc:
-        raise ImportError(
-            f"statewright.plotting needs matplotlib: {_EXTRA_HINT} ({exc})"
-        ) from None
+        raise ImportError(f"statewright.plotting needs matplotlib: {_EXTRA_HINT} ({exc})") from None
     return plt
 
 
@@ -96,9 +94,7 @@ def use_style() -> None:
     from cycler import cycler
 
     plt.rcParams.update(STYLE)
-    plt.rcParams["axes.prop_cycle"] = cycler(color=_COLOURS) + cycler(
-        linestyle=_LINESTYLES
-    )
+    plt.rcParams["axes.prop_cycle"] = cycler(color=_COLOURS) + cycler(linestyle=_LINESTYLES)
 
 
 # --------------------------------------------------------------------------------------
@@ -114,9 +110,7 @@ def _model(x: Any, name: str) -> _sw.Realization:
             return _sw.Realization(*x)
         except _sw.ModelError as exc:
             raise _sw.ModelError(f"{name}: {exc}") from None
-    raise _sw.ModelError(
-        f"{name}: expected a Realization or an (A, B, C, D) tuple, found a {type(x).__name__}"
-    )
+    raise _sw.ModelError(f"{name}: expected a Realization or an (A, B, C, D) tuple, found a {type(x).__name__}")
 
 
 def _float_model(
@@ -130,9 +124,7 @@ def _positive(x: Any, name: str) -> float:
     try:
         value = float(x)
     except (TypeError, ValueError):
-        raise _sw.ModelError(
-            f"{name}: expected a positive number, found a {type(x).__name__}"
-        ) from None
+        raise _sw.ModelError(f"{name}: expected a positive number, found a {type(x).__name__}") from None
     if not (np.isfinite(value) and value > 0):
         raise _sw.ModelError(f"{name}: must be finite and > 0, found {value}")
     return value
@@ -144,27 +136,17 @@ def _time_base(models: Sequence[_sw.Realization], sample_time: Any) -> float | N
         return _positive(sample_time, "sample_time")
     found = {getattr(r, "sample_time", None) for r in models}
     if len(found) > 1:
-        raise _sw.ModelError(
-            f"models: mixed time bases {sorted(found, key=str)}; compare models of one time base"
-        )
+        raise _sw.ModelError(f"models: mixed time bases {sorted(found, key=str)}; compare models of one time base")
     value = found.pop() if found else None
     return None if value is None else _positive(value, "sample_time")
 
 
-def _labels(
-    labels: Sequence[str] | None, count: int, default: Sequence[str]
-) -> list[str]:
+def _labels(labels: Sequence[str] | None, count: int, default: Sequence[str]) -> list[str]:
     if labels is None:
-        return (
-            list(default)[:count]
-            if count <= len(default)
-            else [f"model {i + 1}" for i in range(count)]
-        )
+        return list(default)[:count] if count <= len(default) else [f"model {i + 1}" for i in range(count)]
     out = [str(x) for x in labels]
     if len(out) != count:
-        raise _sw.ModelError(
-            f"labels: expected {count} labels (one per model), found {len(out)}"
-        )
+        raise _sw.ModelError(f"labels: expected {count} labels (one per model), found {len(out)}")
     return out
 
 
@@ -179,17 +161,11 @@ def _zeros_of(r: _sw.Realization) -> np.ndarray | None:
     if r.n_inputs == 1 and r.n_outputs == 1:
         num, _ = _sw.transfer_function(*_float_model(r))
         coeffs = np.trim_zeros(np.asarray(num[0, 0], dtype=float), "f")
-        return (
-            np.roots(coeffs).astype(complex)
-            if coeffs.size
-            else np.zeros(0, dtype=complex)
-        )
+        return np.roots(coeffs).astype(complex) if coeffs.size else np.zeros(0, dtype=complex)
     return None
 
 
-def _response(
-    r: _sw.Realization, w: np.ndarray, sample_time: float | None
-) -> np.ndarray:
+def _response(r: _sw.Realization, w: np.ndarray, sample_time: float | None) -> np.ndarray:
     """G(jw) (G(exp(jwT)) in discrete time) as a (k, p, m) complex array."""
     finder = getattr(_sw, "frequency_response", None)
     if finder is not None:
@@ -199,9 +175,7 @@ def _response(
     return np.asarray(r.evaluate(points))
 
 
-def _default_frequencies(
-    models: Sequence[_sw.Realization], sample_time: float | None
-) -> np.ndarray:
+def _default_frequencies(models: Sequence[_sw.Realization], sample_time: float | None) -> np.ndarray:
     """A log grid a decade and a half around the poles' natural frequencies (to the Nyquist
     frequency pi/T in discrete time), 600 points."""
     mags: list[float] = []
@@ -218,21 +192,15 @@ def _default_frequencies(
     return np.logspace(np.floor(np.log10(low)), np.log10(high), 600)
 
 
-def _frequencies(
-    frequencies: Any, models: Sequence[_sw.Realization], sample_time: float | None
-) -> np.ndarray:
+def _frequencies(frequencies: Any, models: Sequence[_sw.Realization], sample_time: float | None) -> np.ndarray:
     if frequencies is None:
         return _default_frequencies(models, sample_time)
     try:
         w = np.asarray(frequencies, dtype=float).reshape(-1)
     except (TypeError, ValueError):
-        raise _sw.ModelError(
-            "frequencies: expected a 1-D array of positive numbers (rad/s)"
-        ) from None
+        raise _sw.ModelError("frequencies: expected a 1-D array of positive numbers (rad/s)") from None
     if w.size < 2 or not np.all(np.isfinite(w)) or np.any(w <= 0):
-        raise _sw.ModelError(
-            "frequencies: expected at least two finite positive frequencies (rad/s)"
-        )
+        raise _sw.ModelError("frequencies: expected at least two finite positive frequencies (rad/s)")
     return np.sort(w)
 
 
@@ -313,17 +281,13 @@ def pole_zero_map(
     names = _labels(labels, len(rs), [""] if len(rs) == 1 else [])
     if isinstance(zeros, str):
         if zeros != "auto":
-            raise _sw.ModelError(
-                f"zeros: expected 'auto', None or one array per model, found {zeros!r}"
-            )
+            raise _sw.ModelError(f"zeros: expected 'auto', None or one array per model, found {zeros!r}")
         zero_sets = [_zeros_of(r) for r in rs]
     elif zeros is None:
         zero_sets = [np.zeros(0, dtype=complex)] * len(rs)
     else:
         if len(zeros) != len(rs):
-            raise _sw.ModelError(
-                f"zeros: expected one array per model ({len(rs)}), found {len(zeros)}"
-            )
+            raise _sw.ModelError(f"zeros: expected one array per model ({len(rs)}), found {len(zeros)}")
         zero_sets = [np.asarray(z, dtype=complex).reshape(-1) for z in zeros]
     with _context():
         own = ax is None
@@ -369,9 +333,7 @@ def pole_zero_map(
                 )
         if dt is not None:
             t = np.linspace(0, 2 * np.pi, 400)
-            ax.plot(
-                np.cos(t), np.sin(t), color="0.45", lw=1.0, ls="--", label="unit circle"
-            )
+            ax.plot(np.cos(t), np.sin(t), color="0.45", lw=1.0, ls="--", label="unit circle")
             ax.set_aspect("equal", adjustable="datalim")
             ax.set_xlabel("real part (z-plane)")
             ax.set_ylabel("imaginary part (z-plane)")
@@ -460,14 +422,10 @@ def frequency_response_plot(
     rs = [_model(m, f"models[{i}]") for i, m in enumerate(models)]
     shapes = {(r.n_outputs, r.n_inputs) for r in rs}
     if len(shapes) > 1:
-        raise _sw.ModelError(
-            f"models: the models differ in their numbers of outputs and inputs {sorted(shapes)}"
-        )
+        raise _sw.ModelError(f"models: the models differ in their numbers of outputs and inputs {sorted(shapes)}")
     dt = _time_base(rs, sample_time)
     w = _frequencies(frequencies, rs, dt)
-    names = _labels(
-        labels, len(rs), ["original", "reduced"] if len(rs) == 2 else ["model"]
-    )
+    names = _labels(labels, len(rs), ["original", "reduced"] if len(rs) == 2 else ["model"])
     siso = shapes.pop() == (1, 1)
     with _context():
         plt = _pyplot()
@@ -487,17 +445,13 @@ def frequency_response_plot(
                 with np.errstate(divide="ignore"):
                     mag = 20 * np.log10(np.abs(h))
                 ax_mag.semilogx(w, mag, label=name, **style)
-                ax_ph.semilogx(
-                    w, np.degrees(np.unwrap(np.angle(h))), label=name, **style
-                )
+                ax_ph.semilogx(w, np.degrees(np.unwrap(np.angle(h))), label=name, **style)
             else:
                 sv = np.linalg.svd(g, compute_uv=False)
                 with np.errstate(divide="ignore"):
                     db = 20 * np.log10(sv)
                 for j in range(db.shape[1]):
-                    ax_mag.semilogx(
-                        w, db[:, j], label=name if j == 0 else None, **style
-                    )
+                    ax_mag.semilogx(w, db[:, j], label=name if j == 0 else None, **style)
         if dt is not None:
             for ax in (ax_mag, ax_ph):
                 if ax is not None:
@@ -510,21 +464,13 @@ def frequency_response_plot(
                 ls=":",
                 label=f"Nyquist frequency pi/T (T = {dt:g})",
             )
-        ax_mag.set_ylabel(
-            f"magnitude [dB re 1 {gain_unit}]"
-            if siso
-            else f"singular values [dB re 1 {gain_unit}]"
-        )
+        ax_mag.set_ylabel(f"magnitude [dB re 1 {gain_unit}]" if siso else f"singular values [dB re 1 {gain_unit}]")
         bottom = ax_ph if siso else ax_mag
         bottom.set_xlabel(f"frequency [{frequency_unit}]")
         if siso:
             ax_ph.set_ylabel("phase [deg]")
         ax_mag.legend(loc="best")
-        kind = (
-            "frequency response"
-            if siso
-            else "singular values of the frequency response"
-        )
+        kind = "frequency response" if siso else "singular values of the frequency response"
         ax_mag.set_title(title if title is not None else kind)
         fig.tight_layout()
     return fig
@@ -535,9 +481,7 @@ def frequency_response_plot(
 # --------------------------------------------------------------------------------------
 
 
-def _hankel_data(
-    values: Any, order: Any, error_bound: Any
-) -> tuple[np.ndarray, int | None, float | None]:
+def _hankel_data(values: Any, order: Any, error_bound: Any) -> tuple[np.ndarray, int | None, float | None]:
     if isinstance(values, _sw.Realization):
         info = values.info
         if "hankel_singular_values" not in info:
@@ -553,22 +497,12 @@ def _hankel_data(
     try:
         hsv = np.asarray(values, dtype=float).reshape(-1)
     except (TypeError, ValueError):
-        raise _sw.ModelError(
-            "values: expected a 1-D array of Hankel singular values"
-        ) from None
+        raise _sw.ModelError("values: expected a 1-D array of Hankel singular values") from None
     if hsv.size == 0 or not np.all(np.isfinite(hsv)) or np.any(hsv < 0):
-        raise _sw.ModelError(
-            "values: expected at least one finite nonnegative Hankel singular value"
-        )
+        raise _sw.ModelError("values: expected at least one finite nonnegative Hankel singular value")
     if order is not None:
-        if (
-            isinstance(order, bool)
-            or not isinstance(order, (int, np.integer))
-            or not 0 <= int(order) <= hsv.size
-        ):
-            raise _sw.ModelError(
-                f"order: expected an integer from 0 to {hsv.size}, found {order!r}"
-            )
+        if isinstance(order, bool) or not isinstance(order, (int, np.integer)) or not 0 <= int(order) <= hsv.size:
+            raise _sw.ModelError(f"order: expected an integer from 0 to {hsv.size}, found {order!r}")
         order = int(order)
     bound = None if error_bound is None else float(error_bound)
     return hsv, order, bound
@@ -738,22 +672,14 @@ def reduction_error_plot(
     dt = _time_base([r], sample_time)
     n = r.n_states
     if n < 2:
-        raise _sw.ModelError(
-            f"model: needs at least 2 states to compare reduced orders, found {n}"
-        )
+        raise _sw.ModelError(f"model: needs at least 2 states to compare reduced orders, found {n}")
     if orders is None:
         order_list = list(range(1, n))
     else:
         order_list = []
         for k in orders:
-            if (
-                isinstance(k, bool)
-                or not isinstance(k, (int, np.integer))
-                or not 0 <= int(k) < n
-            ):
-                raise _sw.ModelError(
-                    f"orders: expected integers from 0 to {n - 1}, found {k!r}"
-                )
+            if isinstance(k, bool) or not isinstance(k, (int, np.integer)) or not 0 <= int(k) < n:
+                raise _sw.ModelError(f"orders: expected integers from 0 to {n - 1}, found {k!r}")
             order_list.append(int(k))
         if not order_list:
             raise _sw.ModelError("orders: give at least one order")
@@ -773,9 +699,7 @@ def reduction_error_plot(
     with _context():
         own = ax is None
         fig, ax = _new_axes(ax, figsize=(6.0, 4.0))
-        ax.semilogy(
-            ks, bounds, marker="s", color=_COLOURS[1], ls="--", label="error bound"
-        )
+        ax.semilogy(ks, bounds, marker="s", color=_COLOURS[1], ls="--", label="error bound")
         ax.semilogy(
             ks,
             np.maximum(actual, np.finfo(float).tiny),
@@ -795,11 +719,7 @@ def reduction_error_plot(
         ax.set_xlabel("order r of the truncated model [states]")
         ax.set_ylabel(f"largest gain of the error [{gain_unit}]")
         ax.set_xticks(ks if ks.size <= 20 else ks[:: max(1, ks.size // 10)])
-        ax.set_title(
-            title
-            if title is not None
-            else "balanced truncation: bound and actual error"
-        )
+        ax.set_title(title if title is not None else "balanced truncation: bound and actual error")
         ax.legend(loc="best")
         _finish(fig, own)
     return fig
@@ -867,15 +787,11 @@ def fleet_distribution_plot(
     try:
         x = np.asarray(values, dtype=float).reshape(-1)
     except (TypeError, ValueError):
-        raise _sw.ModelError(
-            "values: expected a 1-D array of numbers, one per model"
-        ) from None
+        raise _sw.ModelError("values: expected a 1-D array of numbers, one per model") from None
     if x.size == 0 or not np.all(np.isfinite(x)):
         raise _sw.ModelError("values: expected at least one value, all finite")
     if log and np.any(x < 0):
-        raise _sw.ModelError(
-            "values: a log axis needs nonnegative values (pass log=False)"
-        )
+        raise _sw.ModelError("values: a log axis needs nonnegative values (pass log=False)")
     if isinstance(bins, bool) or not isinstance(bins, (int, np.integer)) or bins < 1:
         raise _sw.ModelError(f"bins: expected a positive integer, found {bins!r}")
     if groups is None:
@@ -884,9 +800,7 @@ def fleet_distribution_plot(
     else:
         g = np.asarray(groups).reshape(-1)
         if g.size != x.size:
-            raise _sw.ModelError(
-                f"groups: expected one label per value ({x.size}), found {g.size}"
-            )
+            raise _sw.ModelError(f"groups: expected one label per value ({x.size}), found {g.size}")
         names = {}
     keys = list(dict.fromkeys(g.tolist()))
     if groups is not None:
@@ -928,16 +842,12 @@ def fleet_distribution_plot(
         if log:
             ax.set_xscale("log")
         if thr is not None:
-            ax.axvline(
-                thr, color="black", ls="--", lw=1.2, label=f"threshold {thr:.3g}"
-            )
+            ax.axvline(thr, color="black", ls="--", lw=1.2, label=f"threshold {thr:.3g}")
         if zero_count:
             ax.plot([], [], ls="none", label=f"{zero_count} exactly zero (lowest bin)")
         ax.set_xlabel(f"{quantity} [{unit}]")
         ax.set_ylabel("models [count]")
-        ax.set_title(
-            title if title is not None else f"fleet distribution of the {quantity}"
-        )
+        ax.set_title(title if title is not None else f"fleet distribution of the {quantity}")
         ax.legend(loc="best")
         _finish(fig, own)
     return fig

@@ -30,11 +30,7 @@ PNG_MAGIC = b"\x89PNG\r\n\x1a\n"
 
 
 def images(cell):
-    return [
-        o["data"]["image/png"]
-        for o in cell.get("outputs", [])
-        if "image/png" in o.get("data", {})
-    ]
+    return [o["data"]["image/png"] for o in cell.get("outputs", []) if "image/png" in o.get("data", {})]
 
 
 def test_every_notebook_has_an_expected_count():
@@ -50,12 +46,10 @@ def test_stored_notebooks_are_the_generated_ones():
     for name, make in make_notebooks.NOTEBOOKS.items():
         stored = nbformat.read(HERE / name, as_version=4)
         generated = make()
-        assert [c.source for c in stored.cells] == [
-            c.source for c in generated.cells
-        ], f"{name} is out of date: run python notebooks-demo/make_notebooks.py"
-        assert all(
-            not c.get("outputs") for c in stored.cells if c.cell_type == "code"
-        ), "stored without outputs"
+        assert [c.source for c in stored.cells] == [c.source for c in generated.cells], (
+            f"{name} is out of date: run python notebooks-demo/make_notebooks.py"
+        )
+        assert all(not c.get("outputs") for c in stored.cells if c.cell_type == "code"), "stored without outputs"
 
 
 @pytest.mark.parametrize("path", NOTEBOOKS, ids=[p.name for p in NOTEBOOKS])
@@ -77,13 +71,6 @@ def test_notebook_runs_and_shows_its_pictures(path: Path) -> None:
     )
     for c in code:
         if DRAWS.search(c.source):
-            assert images(c), (
-                f"{path.name}: a cell that draws shows no picture:\n{c.source[:200]}"
-            )
-    latex = [
-        o
-        for c in code
-        for o in c.get("outputs", [])
-        if "text/latex" in o.get("data", {})
-    ]
+            assert images(c), f"{path.name}: a cell that draws shows no picture:\n{c.source[:200]}"
+    latex = [o for c in code for o in c.get("outputs", []) if "text/latex" in o.get("data", {})]
     assert latex, "a Realization should display as typeset matrices"

@@ -17,6 +17,7 @@ import numpy as np
 import pytest
 import scipy.linalg
 import scipy.signal
+
 import statewright as sw
 from statewright import plotting
 
@@ -56,9 +57,7 @@ def legend_texts(ax):
 
 def line(ax, label):
     found = [ln for ln in ax.get_lines() if ln.get_label() == label]
-    assert len(found) == 1, (
-        f"one line labelled {label!r}, found {[ln.get_label() for ln in ax.get_lines()]}"
-    )
+    assert len(found) == 1, f"one line labelled {label!r}, found {[ln.get_label() for ln in ax.get_lines()]}"
     return found[0]
 
 
@@ -83,10 +82,7 @@ def test_pole_zero_map_siso_against_numpy_roots():
     # numpy.roots of the denominator and numerator (outside reference)
     np.testing.assert_allclose(drawn_p, sorted_complex(np.roots(DEN)), rtol=1e-10)
     np.testing.assert_allclose(drawn_z, sorted_complex(np.roots(NUM)), rtol=1e-10)
-    assert (
-        ax.get_xlabel() == "real part [1/s]"
-        and ax.get_ylabel() == "imaginary part [rad/s]"
-    )
+    assert ax.get_xlabel() == "real part [1/s]" and ax.get_ylabel() == "imaginary part [rad/s]"
     assert legend_texts(ax) == ["poles", "zeros", "imaginary axis"]
     rendered_png(fig)
 
@@ -95,26 +91,20 @@ def test_pole_zero_map_discrete_draws_the_unit_circle():
     rng = np.random.default_rng(3)
     a = np.diag([0.9, 0.5, -0.3])
     b, c = rng.standard_normal((3, 1)), rng.standard_normal((1, 3))
-    fig = plotting.pole_zero_map(
-        (a, b, c, np.zeros((1, 1))), sample_time=0.1, time_unit="s"
-    )
+    fig = plotting.pole_zero_map((a, b, c, np.zeros((1, 1))), sample_time=0.1, time_unit="s")
     ax = fig.axes[0]
     circle = line(ax, "unit circle")
     radius = np.hypot(circle.get_xdata(), circle.get_ydata())
     np.testing.assert_allclose(radius, 1.0, rtol=1e-12)  # (identity)
     poles = line(ax, "poles")
-    np.testing.assert_allclose(
-        np.sort(poles.get_xdata()), [-0.3, 0.5, 0.9]
-    )  # the diagonal (identity)
+    np.testing.assert_allclose(np.sort(poles.get_xdata()), [-0.3, 0.5, 0.9])  # the diagonal (identity)
     assert "z-plane" in ax.get_xlabel() and "sample time 0.1 s" in ax.get_title()
     rendered_png(fig)
 
 
 def test_pole_zero_map_several_models_and_mimo():
     full = sw.Realization(A2, B2, C2, D2)
-    fig = plotting.pole_zero_map(
-        full, sw.realize(NUM, DEN), labels=["mixer", "loop"], zeros=None
-    )
+    fig = plotting.pole_zero_map(full, sw.realize(NUM, DEN), labels=["mixer", "loop"], zeros=None)
     ax = fig.axes[0]
     mixer = line(ax, "mixer: poles")
     np.testing.assert_allclose(
@@ -151,9 +141,7 @@ def test_frequency_response_siso_against_scipy():
         r, sw.realize(NUM, DEN, "modal"), labels=["controller", "modal"], frequencies=w
     )
     ax_mag, ax_ph = fig.axes
-    _, h = scipy.signal.freqresp(
-        scipy.signal.TransferFunction(NUM, DEN), w
-    )  # SciPy (outside reference)
+    _, h = scipy.signal.freqresp(scipy.signal.TransferFunction(NUM, DEN), w)  # SciPy (outside reference)
     for name in ("controller", "modal"):
         mag = line(ax_mag, name)
         np.testing.assert_allclose(mag.get_xdata(), w)
@@ -194,26 +182,18 @@ def test_frequency_response_discrete_against_scipy():
     w = np.linspace(0.01, np.pi / dt, 200)
     fig = plotting.frequency_response_plot((a, b, c, d), frequencies=w, sample_time=dt)
     ax_mag = fig.axes[0]
-    _, h = scipy.signal.dfreqresp(
-        scipy.signal.StateSpace(a, b, c, d, dt=dt), w * dt
-    )  # SciPy, w in rad/sample
-    np.testing.assert_allclose(
-        line(ax_mag, "model").get_ydata(), 20 * np.log10(np.abs(h)), atol=1e-9
-    )
+    _, h = scipy.signal.dfreqresp(scipy.signal.StateSpace(a, b, c, d, dt=dt), w * dt)  # SciPy, w in rad/sample
+    np.testing.assert_allclose(line(ax_mag, "model").get_ydata(), 20 * np.log10(np.abs(h)), atol=1e-9)
     assert any("Nyquist" in t for t in legend_texts(ax_mag))
 
 
 def test_frequency_response_refuses_bad_input():
     with pytest.raises(sw.ModelError, match="models"):
-        plotting.frequency_response_plot(
-            sw.realize(NUM, DEN), sw.Realization(A2, B2, C2, D2)
-        )
+        plotting.frequency_response_plot(sw.realize(NUM, DEN), sw.Realization(A2, B2, C2, D2))
     with pytest.raises(sw.ModelError, match="frequencies"):
         plotting.frequency_response_plot(sw.realize(NUM, DEN), frequencies=[1.0, -2.0])
     with pytest.raises(sw.ModelError, match="frequencies"):
-        plotting.frequency_response_plot(
-            sw.realize(NUM, DEN), frequencies=[np.nan, 1.0]
-        )
+        plotting.frequency_response_plot(sw.realize(NUM, DEN), frequencies=[np.nan, 1.0])
 
 
 # --------------------------------------------------------------------------------------
@@ -241,9 +221,7 @@ def test_hankel_singular_value_plot_from_a_balanced_result():
     assert set(cut.get_xdata()) == {2.5}
     bound = [ln for ln in ax.get_lines() if ln.get_label().startswith("error bound")]
     assert len(bound) == 1
-    np.testing.assert_allclose(
-        bound[0].get_ydata()[0], 2 * hsv[2:].sum(), rtol=1e-8
-    )  # (identity)
+    np.testing.assert_allclose(bound[0].get_ydata()[0], 2 * hsv[2:].sum(), rtol=1e-8)  # (identity)
     assert ax.get_yscale() == "log" and ax.get_xlabel() == "index i"
     rendered_png(fig)
 
@@ -253,9 +231,7 @@ def test_hankel_singular_value_plot_values_with_zeros():
     ax = fig.axes[0]
     zero = line(ax, "exactly zero")
     assert zero.get_xdata().tolist() == [3] and zero.get_ydata()[0] > 0
-    assert not any(
-        ln.get_label().startswith("error bound") for ln in ax.get_lines()
-    )  # nothing discarded
+    assert not any(ln.get_label().startswith("error bound") for ln in ax.get_lines())  # nothing discarded
     with pytest.raises(sw.ModelError, match="order"):
         plotting.hankel_singular_value_plot([2.0, 1.0], order=3)
     with pytest.raises(sw.ModelError, match="values"):
@@ -275,9 +251,7 @@ def test_reduction_error_plot_bounds_hold():
     actual = line(ax, "actual error (grid maximum)")
     lower = line(ax, r"lower bound $\sigma_{r+1}$")
     np.testing.assert_array_equal(bound.get_xdata(), orders)
-    expected_bound = [
-        2 * hsv[k:].sum() for k in orders
-    ]  # (identity: twice the discarded sum)
+    expected_bound = [2 * hsv[k:].sum() for k in orders]  # (identity: twice the discarded sum)
     np.testing.assert_allclose(bound.get_ydata(), expected_bound, rtol=1e-8)
     np.testing.assert_allclose(lower.get_ydata(), hsv[orders], rtol=1e-8)
     err = np.asarray(actual.get_ydata())
@@ -321,18 +295,11 @@ def test_fleet_distribution_counts_every_model_once():
     heights = [sum(p.get_height() for p in c) for c in containers]
     assert sum(heights) == 500
     assert sorted(heights) == sorted([int(decided.sum()), int((~decided).sum())])
-    counts = {
-        text.split(" (")[0]: int(text.split("(")[1].rstrip(")"))
-        for text in legend_texts(ax)[:2]
-    }
+    counts = {text.split(" (")[0]: int(text.split("(")[1].rstrip(")")) for text in legend_texts(ax)[:2]}
     assert counts == {"kept": int(decided.sum()), "removed": int((~decided).sum())}
     assert "7 exactly zero (lowest bin)" in legend_texts(ax)
     assert any(t.startswith("threshold 1e-09") for t in legend_texts(ax))
-    assert (
-        ax.get_xscale() == "log"
-        and ax.get_xlabel() == "margin [1]"
-        and ax.get_ylabel() == "models [count]"
-    )
+    assert ax.get_xscale() == "log" and ax.get_xlabel() == "margin [1]" and ax.get_ylabel() == "models [count]"
     rendered_png(fig)
 
 
@@ -371,9 +338,7 @@ def test_importing_statewright_does_not_import_matplotlib():
     import subprocess
 
     code = "import sys, statewright, statewright.plotting; print('matplotlib' in sys.modules)"
-    out = subprocess.run(
-        [sys.executable, "-c", code], capture_output=True, text=True, check=True
-    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
 
 
