@@ -10,7 +10,7 @@ import numpy as np
 import numpy.typing as npt
 
 from .._base import validate as v
-from .._base.display import latex_matrix, text_matrix
+from .._base.display import realization_latex, text_matrix
 from .._base.exact import solve
 from .._base.scaling import range_exponent, times_pow2
 from .._compute import interop, recover, structure
@@ -332,8 +332,9 @@ class Realization:
 
     # -- display -----------------------------------------------------------------------
     def _repr_latex_(self) -> str:
-        parts = [rf"{name} = {latex_matrix(m)}" for name, m in zip("ABCD", self)]
-        return "$" + r",\quad ".join(parts) + "$"
+        """Typeset matrices under a caption of the size, time base and arithmetic
+        (``statewright._base.display``)."""
+        return realization_latex(self)
 
     def __repr__(self) -> str:
         kind = "exact " if self.exact else ""
