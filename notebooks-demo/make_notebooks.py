@@ -82,7 +82,7 @@ def canonical_forms() -> nbformat.NotebookNode:
         new_markdown_cell(
             "Our fit is minimal. Phase variables $x_1 = z, x_2 = \\dot z, x_3 = \\ddot z$ of $a(p) z = u$, "
             "$y = c(p) z$ give the controllable canonical form. In a notebook it shows as typeset "
-            "matrices, with a caption of its size, time base and arithmetic."
+            "matrices, under a caption of its size and arithmetic (and its time base, where the model records one)."
         ),
         new_code_cell("r"),
         new_markdown_cell(
