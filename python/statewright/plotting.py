@@ -16,7 +16,7 @@ keyword (``None``: continuous time).
 from __future__ import annotations
 
 from collections.abc import Sequence
-from typing import Any
+from typing import Any, cast
 
 import numpy as np
 
@@ -85,7 +85,7 @@ def _context() -> Any:
 
     rc = dict(STYLE)
     rc["axes.prop_cycle"] = cycler(color=_COLOURS) + cycler(linestyle=_LINESTYLES)
-    return mpl.rc_context(rc)
+    return mpl.rc_context(cast(Any, rc))  # STYLE's keys are valid rc names
 
 
 def use_style() -> None:

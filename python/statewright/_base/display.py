@@ -14,7 +14,7 @@ blocks.
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Any, Dict, List, Optional, Sequence, Tuple
+from typing import Any, Dict, List, Optional, Sequence, Set, Tuple
 
 import numpy as np
 
@@ -64,7 +64,7 @@ def _shown(count: int) -> List[Optional[int]]:
     return [*range(half), None, *range(count - half, count)]
 
 
-def _rule_positions(shown: List[Optional[int]], cuts: Sequence[int]) -> set:
+def _rule_positions(shown: List[Optional[int]], cuts: Sequence[int]) -> Set[int]:
     """Positions in the shown list after which a rule goes. A cut k lies between index
     k - 1 and k: the rule follows index k - 1 where that is shown, else the elision mark
     (the boundary lies inside the elided range)."""
