@@ -2,9 +2,9 @@
 linear time-invariant models, with a Rust core.
 
 >>> import statewright as sw
->>> r = sw.realize([1, 3], [1, 3, 2], "observable_canonical")
+>>> r = sw.realize([1.5, 6], [1, 2.4, 3.1, 1.2], "observable_canonical")
 >>> r.n_states
-2
+3
 """
 
 # Layers, bottom to top (tests/package/test_import_graph.py enforces them): _core and

@@ -292,7 +292,7 @@ def test_time_base_survives_transform_pickle_and_display():
     assert sw.realize_markov(h).sample_time == 1.0
     assert r.transform([[2.0]]).sample_time == 0.25
     assert pickle.loads(pickle.dumps(r)).sample_time == 0.25
-    assert "sample_time=0.25" in repr(r) and r"T = 0.25" in r._repr_latex_()
+    assert "sample_time=0.25" in repr(r) and "sample time 0.25" in r._repr_latex_()
     back = r.to_continuous()
     assert np.isclose(back.a[0, 0], np.log(0.5) / 0.25)  # A = log(A_d) / T (identity)
     with pytest.raises(sw.ModelError, match="sample_time"):

@@ -58,7 +58,8 @@ def realize_markov(
         Markov parameters (impulse-response matrices), ``markov[0]`` the feedthrough D.
         A 1-D array of length k is read as a single-input single-output sequence (k, 1, 1).
     order : int, optional
-        The state dimension. Default: the number of Hankel singular values above ``tol``.
+        The state dimension. Default: the number of singular values of the data's block
+        Hankel matrix H above ``tol``.
     tol : float, optional
         Default ``n**2 * eps * ||H||_F``, n the smaller side of the block Hankel matrix H.
     sample_time : float, optional
@@ -69,8 +70,12 @@ def realize_markov(
     -------
     Realization
         A discrete-time realization (``.sample_time`` set). ``.info`` holds
-        ``"singular_values"`` (all Hankel singular values, descending),
-        ``"order"``, ``"tol"`` and ``"hankel_blocks"`` (block rows, block columns).
+        ``"singular_values"`` (all singular values of the data's block Hankel matrix H,
+        descending), ``"order"``, ``"tol"`` and ``"hankel_blocks"`` (block
+        rows, block columns). H is a finite section of the model's Hankel operator, built
+        from the (possibly noisy) data: its singular values are not the model's Hankel
+        singular values (:func:`hankel_singular_values`, from the Gramians), and differ
+        from them for short or noisy records.
 
     Raises
     ------
@@ -219,7 +224,7 @@ def balanced_realization(
     Examples
     --------
     >>> import numpy as np, statewright as sw
-    >>> r = sw.realize([1.0, 2.0], [1.0, 3.0, 2.0])               # (s + 2) / ((s + 1)(s + 2))
+    >>> r = sw.realize([1.0, 4.0], [1.0, 5.5, 6.0])               # (s + 4) / ((s + 1.5)(s + 4))
     >>> br = sw.balanced_realization(*r, order=1)
     >>> br.n_states, float(br.info["error_bound"]) < 1e-8          # a cancellation: nothing lost
     (1, True)

@@ -11,7 +11,7 @@ import numpy.typing as npt
 
 from .._base import time_base as tb
 from .._base import validate as v
-from .._base.display import latex_matrix, text_matrix
+from .._base.display import realization_latex, text_matrix
 from .._base.exact import solve
 from .._base.scaling import range_exponent, times_pow2
 from .._compute import identify, interop, recover, structure
@@ -437,10 +437,9 @@ class Realization:
 
     # -- display -----------------------------------------------------------------------
     def _repr_latex_(self) -> str:
-        parts = [rf"{name} = {latex_matrix(m)}" for name, m in zip("ABCD", self)]
-        if self._sample_time is not None:
-            parts.append(rf"T = {self._sample_time}\,\mathrm{{s}}")
-        return "$" + r",\quad ".join(parts) + "$"
+        """Typeset matrices under a caption of the size, time base and arithmetic
+        (``statewright._base.display``)."""
+        return realization_latex(self)
 
     def __repr__(self) -> str:
         kind = "exact " if self.exact else ""
