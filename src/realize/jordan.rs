@@ -378,8 +378,11 @@ pub fn jordan_from_split(
                 }
             })?
         };
-        // taylor_coeffs[i] is the residue of order m − i.
-        let residues: Vec<(f64, f64)> = (1..=m).map(|j| taylor_coeffs[m - j]).collect();
+        // taylor_coeffs[i] is the residue of order m − i; a real pole's residues are real.
+        let residues: Vec<(f64, f64)> = (1..=m)
+            .map(|j| taylor_coeffs[m - j])
+            .map(|r| if pole.1 == 0.0 { (r.0, 0.0) } else { r })
+            .collect();
         if pole.1 == 0.0 {
             for i in 0..m {
                 a.set(at + i, at + i, pole.0);
@@ -462,8 +465,9 @@ pub fn jordan_from_split(
         return Err(ModelError::BadValue {
             arg: "tol",
             detail: format!(
-                "merging the poles within tol = {tol:.3e} changes the transfer function by \
-                 {transfer_error:.3e} relative (limit {limit:.3e}); choose a smaller tol"
+                "the Jordan form with poles merged within tol = {tol:.3e} deviates from num/den \
+                 by {transfer_error:.3e} relative at the sample points (limit {limit:.3e}): \
+                 poles nearly repeated at a distance above tol cancel; a larger tol merges them"
             ),
         });
     }

@@ -448,7 +448,12 @@ pub fn refined_roots(den: &[f64], max_sweeps: usize) -> Result<RefinedRoots> {
     }
     let converged = reps.iter().all(|&k| done[k]);
     for k in 0..m {
-        let e = err[mate[k]];
+        // The error of a pair is kept on its upper (iterated) member.
+        let e = if start[k].1 >= 0.0 {
+            err[k]
+        } else {
+            err[mate[k]]
+        };
         roots.push(z[k]);
         relative_error.push(e);
     }
