@@ -11,6 +11,8 @@ use pyo3::types::PyDict;
 
 /// Each exact factor as (monic factor, multiplicity, numerators of orders 1..m).
 type ExactFactorOut = (ExactOut, usize, Vec<ExactOut>);
+/// An exact model's four matrices.
+type ExactQuadOut = (ExactOut, ExactOut, ExactOut, ExactOut);
 
 #[pyfunction]
 #[pyo3(signature = (num, den, tol))]
@@ -42,10 +44,7 @@ pub(crate) fn realize_jordan_exact(
     py: Python<'_>,
     num: ExactIn,
     den: ExactIn,
-) -> PyResult<(
-    (ExactOut, ExactOut, ExactOut, ExactOut),
-    Vec<ExactFactorOut>,
-)> {
+) -> PyResult<(ExactQuadOut, Vec<ExactFactorOut>)> {
     let (num, den) = (exact_vector("num", num)?, exact_vector("den", den)?);
     let (ss, factors) = run(py, move || realize::realize_jordan_exact(&num, &den))?;
     let out = factors
