@@ -14,6 +14,7 @@
 mod batch;
 mod convert;
 mod errors;
+mod forms;
 mod identify;
 mod realize;
 mod recover;
@@ -31,6 +32,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(realize::realize_exact, m)?)?;
     m.add_function(wrap_pyfunction!(realize::realize_transfer_matrix_float, m)?)?;
     m.add_function(wrap_pyfunction!(realize::realize_transfer_matrix_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(forms::realize_jordan_float, m)?)?;
+    m.add_function(wrap_pyfunction!(forms::realize_jordan_exact, m)?)?;
     // recover
     m.add_function(wrap_pyfunction!(recover::faddeev_leverrier_float, m)?)?;
     m.add_function(wrap_pyfunction!(recover::faddeev_leverrier_exact, m)?)?;
