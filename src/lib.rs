@@ -19,6 +19,7 @@ pub mod recover;
 pub mod scalar;
 pub mod state_space;
 pub mod structure;
+pub mod zeros;
 
 #[cfg(feature = "python")]
 pub mod python;
