@@ -18,6 +18,7 @@ mod identify;
 mod realize;
 mod recover;
 mod structure;
+mod zeros;
 
 use pyo3::prelude::*;
 
@@ -57,5 +58,12 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     // batch
     m.add_function(wrap_pyfunction!(batch::realize_batch, m)?)?;
     m.add_function(wrap_pyfunction!(batch::transfer_function_batch, m)?)?;
+    // zeros and gains
+    m.add_function(wrap_pyfunction!(zeros::invariant_zeros, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::normal_rank, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::dc_gain, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::zeros_poles_gain, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::realize_zeros_poles_gain, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::invariant_zeros_batch, m)?)?;
     Ok(())
 }

@@ -13,7 +13,7 @@ from .._base import validate as v
 from .._base.display import latex_matrix, text_matrix
 from .._base.exact import solve
 from .._base.scaling import range_exponent, times_pow2
-from .._compute import interop, recover, structure
+from .._compute import interop, recover, structure, zeros
 from .._compute.recover import METHODS
 from .._core import ModelError
 from .structure import Decomposition, Staircase
@@ -329,6 +329,10 @@ class Realization:
         """:func:`statewright.minimal_realization` of this realization."""
         arrays, info = structure.minimal_realization(*self._float(), v.tol(tol))
         return Realization._trusted(*arrays, info)
+
+    def zeros(self, *, tol: Optional[float] = None) -> np.ndarray:
+        """:func:`statewright.invariant_zeros` of this realization."""
+        return zeros.invariant_zeros(*self._float(), v.tol(tol))[0]
 
     # -- display -----------------------------------------------------------------------
     def _repr_latex_(self) -> str:
