@@ -205,7 +205,7 @@ def realize_zeros_poles_gain(zeros: Any, poles: Any, gain: Any, form: str = "con
     >>> r = sw.realize_zeros_poles_gain([-1 + 2j, -1 - 2j], [-1.0, -2.0, -3.0], 3.0)
     >>> num, den = r.transfer_function()
     >>> num[0, 0], den
-    (array([0., 3., 6., 15.]), array([ 1.,  6., 11.,  6.]))
+    (array([ 0.,  3.,  6., 15.]), array([ 1.,  6., 11.,  6.]))
     """
     form = v.check_option(form, "form", FORMS)
     z, p = _roots(zeros, "zeros"), _roots(poles, "poles")
