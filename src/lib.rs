@@ -36,6 +36,7 @@ pub mod scalar;
 pub mod state_space;
 pub mod structure;
 pub mod time;
+pub mod zeros;
 
 #[cfg(feature = "python")]
 pub mod python;

@@ -36,6 +36,15 @@ from ._api.time import (
     to_discrete,
 )
 from ._api.transfer_matrix import realize_transfer_matrix
+from ._api.zeros import (
+    dc_gain,
+    invariant_zeros,
+    invariant_zeros_batch,
+    normal_rank,
+    realize_zeros_poles_gain,
+    transmission_zeros,
+    zeros_poles_gain,
+)
 from ._core import ModelError
 from ._results.realization import Realization
 
@@ -73,4 +82,11 @@ __all__ = [
     "frequency_response",
     "frequency_response_batch",
     "to_continuous_batch",
+    "invariant_zeros",
+    "transmission_zeros",
+    "normal_rank",
+    "dc_gain",
+    "zeros_poles_gain",
+    "realize_zeros_poles_gain",
+    "invariant_zeros_batch",
 ]

@@ -20,6 +20,7 @@ mod realize;
 mod recover;
 mod structure;
 mod time;
+mod zeros;
 
 use pyo3::prelude::*;
 
@@ -67,5 +68,12 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(time::frequency_response, m)?)?;
     m.add_function(wrap_pyfunction!(time::frequency_response_batch, m)?)?;
     m.add_function(wrap_pyfunction!(time::to_continuous_batch, m)?)?;
+    // zeros and gains
+    m.add_function(wrap_pyfunction!(zeros::invariant_zeros, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::normal_rank, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::dc_gain, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::zeros_poles_gain, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::realize_zeros_poles_gain, m)?)?;
+    m.add_function(wrap_pyfunction!(zeros::invariant_zeros_batch, m)?)?;
     Ok(())
 }

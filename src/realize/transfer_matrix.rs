@@ -319,7 +319,7 @@ pub fn realize_transfer_matrix_exact(
 
 /// Roots of a monic polynomial: exact zeros first, then the companion eigenvalues, complex
 /// pairs made exactly conjugate (each root of the upper half plane followed by its conjugate).
-fn roots(monic: &[f64]) -> Result<Vec<(f64, f64)>> {
+pub(crate) fn roots(monic: &[f64]) -> Result<Vec<(f64, f64)>> {
     let fail = ModelError::NoConvergence {
         routine: "the eigenvalue iteration for the denominator roots",
     };

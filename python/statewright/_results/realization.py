@@ -14,7 +14,7 @@ from .._base import validate as v
 from .._base.display import realization_latex, text_matrix
 from .._base.exact import solve
 from .._base.scaling import range_exponent, times_pow2
-from .._compute import identify, interop, recover, structure
+from .._compute import identify, interop, recover, structure, zeros
 from .._compute import time as time_compute
 from .._compute.recover import METHODS
 from .._core import ModelError
@@ -434,6 +434,10 @@ class Realization:
         t = tb.sample_time(sample_time)
         out, info = time_compute.convert(self._float(), t, method, prewarp, forward)
         return Realization._trusted(*out, info, frozen=True, sample_time=t if forward else None)
+
+    def zeros(self, *, tol: Optional[float] = None) -> np.ndarray:
+        """:func:`statewright.invariant_zeros` of this realization."""
+        return zeros.invariant_zeros(*self._float(), v.tol(tol))[0]
 
     # -- display -----------------------------------------------------------------------
     def _repr_latex_(self) -> str:
