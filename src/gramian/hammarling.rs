@@ -544,6 +544,9 @@ pub struct GramianFactors {
     pub product: DMatrix<f64>,
     /// The real Schur form of A used (2×2 blocks hold complex pairs).
     pub schur: RealSchur,
+    /// `‖ |U_oᵀ P| |U_c| ‖_F`: the scale of the rounding errors of forming the product
+    /// (|fl(XY) − XY| ≤ γ_n |X| |Y| entrywise, Higham 2002, §3.5).
+    pub product_abs_norm: f64,
 }
 
 /// The Cholesky factors of both Gramians of (A, B, C).
@@ -577,11 +580,14 @@ pub fn gramian_factors(
     let puo = DMatrix::from_fn(n, n, |i, j| uo[(n - 1 - i, j)]);
     let lo = &schur.u * &puo;
     let product = puo.transpose() * &uc;
+    let abs_product = puo.abs().transpose() * uc.abs();
+    let product_abs_norm = crate::matrix::frobenius_norm(abs_product.as_slice());
     Ok(GramianFactors {
         lc,
         lo,
         product,
         schur,
+        product_abs_norm,
     })
 }
 
