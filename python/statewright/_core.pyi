@@ -1,7 +1,7 @@
 """Type stubs for the compiled core (the PyO3 binding layer). Private: use the functions
 re-exported by ``statewright``, which validate their input first."""
 
-from typing import Dict, List, Optional, Tuple, Union
+from typing import Any, Dict, List, Optional, Tuple, Union
 
 import numpy as np
 import numpy.typing as npt
@@ -16,6 +16,12 @@ class ModelError(ValueError):
 
 def realize_float(num: _F64, den: _F64, form: str) -> Tuple[Tuple[_F64, _F64, _F64, _F64], Dict[str, float]]: ...
 def realize_exact(num: _Exact, den: _Exact, form: str) -> Tuple[_Exact, _Exact, _Exact, _Exact]: ...
+def realize_jordan_float(
+    num: _F64, den: _F64, tol: Optional[float]
+) -> Tuple[Tuple[_F64, _F64, _F64, _F64], Dict[str, Any]]: ...
+def realize_jordan_exact(
+    num: _Exact, den: _Exact
+) -> Tuple[Tuple[_Exact, _Exact, _Exact, _Exact], List[Tuple[_Exact, int, List[_Exact]]]]: ...
 def faddeev_leverrier_float(
     a: _F64, method: str, with_adjugates: bool
 ) -> Tuple[_F64, _F64, Dict[str, Union[str, float, None]]]: ...
@@ -62,3 +68,20 @@ def realize_transfer_matrix_float(
 def realize_transfer_matrix_exact(
     num: _Exact, den: _Exact, p: int, m: int, form: str
 ) -> Tuple[_Exact, _Exact, _Exact, _Exact]: ...
+
+# time base: (A, B, C, D) read-only and the figures of the computation
+def convert_time_base(
+    model: _Model, sample_time: float, method: str, prewarp_frequency: Optional[float], forward: bool
+) -> Tuple[_Quad, Dict[str, float]]: ...
+def convert_time_base_exact(
+    model: Tuple[_Exact, _Exact, _Exact, _Exact], sample_time: Tuple[int, int], method: str, forward: bool
+) -> Tuple[_Exact, _Exact, _Exact, _Exact]: ...
+def frequency_response(
+    model: _Model, frequencies: _F64, sample_time: Optional[float]
+) -> npt.NDArray[np.complex128]: ...
+def frequency_response_batch(
+    models: _Quad, frequencies: _F64, sample_time: Optional[float]
+) -> npt.NDArray[np.complex128]: ...
+def to_continuous_batch(
+    models: _Quad, sample_time: float, method: str, prewarp_frequency: Optional[float]
+) -> Tuple[_Quad, _F64]: ...

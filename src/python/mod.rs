@@ -7,17 +7,19 @@
 //! in the core is a bug; the last-resort guard reports it as `ModelError` rather than
 //! letting it abort the caller's kernel.
 //!
-//! One file per area, each thin: `realize`, `recover`, `structure`, `identify`, `batch`;
+//! One file per area, each thin: `realize`, `recover`, `structure`, `identify`, `batch`, `time`;
 //! the shared conversions (`convert`: the one `(a, b, c, d)` model argument, result arrays,
 //! exact data) and the error mapping and GIL release (`errors`).
 
 mod batch;
 mod convert;
 mod errors;
+mod forms;
 mod identify;
 mod realize;
 mod recover;
 mod structure;
+mod time;
 
 use pyo3::prelude::*;
 
@@ -30,6 +32,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(realize::realize_exact, m)?)?;
     m.add_function(wrap_pyfunction!(realize::realize_transfer_matrix_float, m)?)?;
     m.add_function(wrap_pyfunction!(realize::realize_transfer_matrix_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(forms::realize_jordan_float, m)?)?;
+    m.add_function(wrap_pyfunction!(forms::realize_jordan_exact, m)?)?;
     // recover
     m.add_function(wrap_pyfunction!(recover::faddeev_leverrier_float, m)?)?;
     m.add_function(wrap_pyfunction!(recover::faddeev_leverrier_exact, m)?)?;
@@ -57,5 +61,11 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     // batch
     m.add_function(wrap_pyfunction!(batch::realize_batch, m)?)?;
     m.add_function(wrap_pyfunction!(batch::transfer_function_batch, m)?)?;
+    // time base
+    m.add_function(wrap_pyfunction!(time::convert_time_base, m)?)?;
+    m.add_function(wrap_pyfunction!(time::convert_time_base_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(time::frequency_response, m)?)?;
+    m.add_function(wrap_pyfunction!(time::frequency_response_batch, m)?)?;
+    m.add_function(wrap_pyfunction!(time::to_continuous_batch, m)?)?;
     Ok(())
 }

@@ -40,6 +40,9 @@ pub(crate) fn realize_float<'py>(
             let info = PyDict::new(py);
             info.set_item("eigenvector_condition", m.eigenvector_condition)?;
             info.set_item("condition_limit", m.condition_limit)?;
+            info.set_item("pole_separation", m.pole_separation)?;
+            info.set_item("separation_limit", m.separation_limit)?;
+            info.set_item("pole_error", m.pole_error)?;
             Some(info)
         }
         None => None,

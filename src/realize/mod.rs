@@ -15,8 +15,10 @@
 
 pub mod controllable;
 pub mod controller;
+pub mod jordan;
 pub mod krylov;
 pub mod modal;
+pub mod roots;
 pub mod transfer_matrix;
 
 use crate::error::{ModelError, Result};
@@ -36,6 +38,7 @@ pub enum Form {
     Controllability,
     Observability,
     Modal,
+    Jordan,
 }
 
 /// Largest order realized (an n×n A of float64 takes 8 n² bytes: 128 MiB here).
@@ -55,7 +58,7 @@ pub(crate) fn check_order(n: usize, limit: usize, what: &str) -> Result<()> {
 }
 
 pub const FORM_NAMES: &str = "'controllable_canonical', 'observable_canonical', 'controller', \
-'observer', 'controllability', 'observability', 'modal'";
+'observer', 'controllability', 'observability', 'modal', 'jordan'";
 
 impl FromStr for Form {
     type Err = ModelError;
@@ -68,6 +71,7 @@ impl FromStr for Form {
             "controllability" => Form::Controllability,
             "observability" => Form::Observability,
             "modal" => Form::Modal,
+            "jordan" => Form::Jordan,
             other => {
                 return Err(ModelError::BadOption {
                     arg: "form",
@@ -113,6 +117,13 @@ pub fn companion_from_split<T: Scalar>(
                 allowed: "a companion form here; the modal form needs float data",
             })
         }
+        Form::Jordan => {
+            return Err(ModelError::BadOption {
+                arg: "form",
+                found: "jordan".into(),
+                allowed: "a companion form here; the Jordan form has its own entry points",
+            })
+        }
     })
 }
 
@@ -149,6 +160,8 @@ pub fn realize_f64(
     let (ss, info) = if form == Form::Modal {
         let (ss, info) = modal::modal_from_split(&split)?;
         (ss, Some(info))
+    } else if form == Form::Jordan {
+        (jordan::jordan_from_split(&split, None)?.0, None)
     } else {
         (companion_from_split(&split, form)?, None)
     };
@@ -162,6 +175,57 @@ pub fn realize_f64(
         });
     }
     Ok((ss, info))
+}
+
+/// The float Jordan form of `num/den` with its cluster tolerance (None: the default).
+///
+/// # Errors
+/// Those of [`realize_f64`] and [`jordan::jordan_from_split`].
+pub fn realize_jordan_f64(
+    num: &[f64],
+    den: &[f64],
+    tol: Option<f64>,
+) -> Result<(StateSpace<f64>, jordan::JordanInfo)> {
+    crate::error::require_finite("num", num)?;
+    crate::error::require_finite("den", den)?;
+    check_order(
+        strip_leading_zeros(den).len().saturating_sub(1),
+        MAX_MODAL_ORDER,
+        "the Jordan form",
+    )?;
+    let split = split_proper(num, den)?;
+    if split
+        .den
+        .iter()
+        .chain(&split.strict_num)
+        .any(|v| !v.is_finite())
+        || !split.direct.is_finite()
+    {
+        return Err(ModelError::Overflow {
+            what: "normalising num/den by the leading denominator coefficient".into(),
+        });
+    }
+    jordan::jordan_from_split(&split, tol)
+}
+
+/// The exact Jordan form of `num/den` (denominator factored over the rationals).
+///
+/// # Errors
+/// Those of [`split_proper`]; `TooLarge` above order 256.
+pub fn realize_jordan_exact(
+    num: &[num_rational::BigRational],
+    den: &[num_rational::BigRational],
+) -> Result<(
+    StateSpace<num_rational::BigRational>,
+    Vec<jordan::ExactFactor>,
+)> {
+    check_order(
+        strip_leading_zeros(den).len().saturating_sub(1),
+        256,
+        "the exact Jordan form",
+    )?;
+    let split = split_proper(num, den)?;
+    jordan::jordan_exact(&split)
 }
 
 /// `[[d]]` and the 0-state pieces shared by every form of a pure gain.

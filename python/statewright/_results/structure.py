@@ -8,8 +8,8 @@ from typing import TYPE_CHECKING, Any, List, Mapping, Optional, Tuple
 
 import numpy as np
 
-from .._base.display import latex_matrix
-from .._base.validate import frozen
+from .._base.display import decomposition_latex, staircase_latex
+from .._base.validate import ModelError, frozen
 
 if TYPE_CHECKING:  # pragma: no cover - annotations only; never imported at run time
     from .realization import Realization
@@ -86,6 +86,40 @@ class Staircase:
         )
         return (Staircase, (raw, self.kind))
 
+    def _indices(self, kind: str, width: int) -> Tuple[int, ...]:
+        if self.kind != kind:
+            raise ModelError(f"{kind}_indices: this is a {self.kind} staircase; use the {kind} staircase")
+        # (Van Dooren 1981) the step sizes are the conjugate partition of the indices:
+        # mu_j = #{steps of size >= j}, j = 1 .. number of inputs (outputs).
+        return tuple(sum(1 for rho in self.blocks if rho >= j) for j in range(1, width + 1))
+
+    def controllability_indices(self) -> Tuple[int, ...]:
+        """The controllability indices, in decreasing order, one per input.
+
+        Decided on the orthogonal staircase: the step sizes ``rho_1 >= rho_2 >= ...`` are
+        the conjugate partition of the indices, ``mu_j = #{i : rho_i >= j}``
+        (``rho_k`` is the rank increase of ``[B, AB, ..., A^(k-1) B]``, found here without
+        forming it). They sum to :attr:`rank`; an input that adds nothing has index 0.
+        Which input carries which index is decided by
+        :func:`statewright.multivariable_canonical_form`.
+
+        Examples
+        --------
+        >>> import statewright as sw
+        >>> a = [[0, 1, 0], [0, 0, 0], [0, 0, -1]]
+        >>> st = sw.controllability_staircase(a, [[0, 0], [1, 0], [0, 1]])
+        >>> st.controllability_indices()
+        (2, 1)
+        """
+        return self._indices("controllability", int(self.b.shape[1]))
+
+    def observability_indices(self) -> Tuple[int, ...]:
+        """The observability indices, in decreasing order, one per output (the dual of
+        :meth:`controllability_indices`, on the observability staircase's step sizes)."""
+        if self.c is None:
+            return self._indices("observability", 0)
+        return self._indices("observability", int(self.c.shape[0]))
+
     def __repr__(self) -> str:
         return (
             f"Staircase({self.kind}, n_states={self.n_states}, rank={self.rank}, blocks={self.blocks}, "
@@ -93,14 +127,8 @@ class Staircase:
         )
 
     def _repr_latex_(self) -> str:
-        # Show the block structure: A partitioned at the step boundaries.
-        a = self.a
-        cuts = np.cumsum(self.blocks).tolist()
-        if self.rank < self.n_states:
-            cuts = cuts[:-1] + [self.rank]
-        body = latex_matrix(a)
-        head = rf"\text{{{self.kind} staircase: rank {self.rank} of {self.n_states}, blocks {self.blocks}}}"
-        return "$" + head + r"\quad Q^T A Q = " + body + r",\quad Q^T B = " + latex_matrix(self.b) + "$"
+        """Q^T A Q, Q^T B (and C Q) with a rule after every step: the staircase of blocks."""
+        return staircase_latex(self)
 
 
 class Decomposition:
@@ -155,5 +183,5 @@ class Decomposition:
         return f"Decomposition({parts}; condition of T {self.info['condition']:.3g})"
 
     def _repr_latex_(self) -> str:
-        head = rf"\text{{Kalman decomposition, sizes {self.sizes}}}\quad T^{{-1}} A T = "
-        return "$" + head + latex_matrix(self.realization.a) + "$"
+        """The transformed model with rules between its four parts."""
+        return decomposition_latex(self)
