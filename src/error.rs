@@ -38,6 +38,9 @@ pub enum ModelError {
     Overflow { what: String },
     /// The request would need more memory or time than is reasonable; refused before allocation.
     TooLarge { arg: &'static str, detail: String },
+    /// A result failed the check against its input that the routine makes before
+    /// returning it (e.g. a balanced realization that is not balanced).
+    Unverified { what: &'static str, detail: String },
     /// A model of a batch failed; `index` says which.
     Batch {
         index: usize,
@@ -78,6 +81,10 @@ impl fmt::Display for ModelError {
                 "{what}: the result overflows the float64 range although the input is finite"
             ),
             ModelError::TooLarge { arg, detail } => write!(f, "{arg}: request too large: {detail}"),
+            ModelError::Unverified { what, detail } => write!(
+                f,
+                "{what}: the result failed its verification and is refused: {detail}"
+            ),
             ModelError::Batch { index, source } => write!(f, "model {index} of the batch: {source}"),
         }
     }

@@ -51,6 +51,7 @@ pub(crate) fn from_na(m: &DMatrix<f64>) -> Matrix<f64> {
 }
 
 /// The real Schur form `A = U T Uᵀ` and the (start, size) of T's diagonal blocks.
+#[derive(Debug, Clone)]
 pub struct RealSchur {
     pub u: DMatrix<f64>,
     pub t: DMatrix<f64>,
@@ -127,11 +128,19 @@ pub fn check_stable(s: &RealSchur, discrete: bool) -> Result<()> {
             } else {
                 "real part >= 0 (continuous time)"
             };
+            // A continuous-time refusal of a model whose poles all lie inside the unit
+            // circle is most likely a discrete-time model passed without the flag.
+            let hint = if !discrete && eigenvalues(s).iter().all(|&(r, i)| r.hypot(i) < 1.0) {
+                "; every eigenvalue lies inside the unit circle, so the model looks discrete: \
+                 pass discrete=True if it is a discrete-time model"
+            } else {
+                ""
+            };
             return Err(ModelError::BadValue {
                 arg: "a",
                 detail: format!(
                     "the model is not stable: eigenvalue {re:.6e}{im:+.6e}j has {rule}; Gramians and balancing \
-                     need a stable model"
+                     need a stable model{hint}"
                 ),
             });
         }
@@ -140,7 +149,7 @@ pub fn check_stable(s: &RealSchur, discrete: bool) -> Result<()> {
 }
 
 /// Solves `K y = r` (K of order ≤ 4) by Gaussian elimination with partial pivoting.
-fn small_solve(mut k: [[f64; 4]; 4], mut r: [f64; 4], n: usize) -> Result<[f64; 4]> {
+pub(crate) fn small_solve(mut k: [[f64; 4]; 4], mut r: [f64; 4], n: usize) -> Result<[f64; 4]> {
     for col in 0..n {
         let piv = (col..n)
             .max_by(|&x, &y| k[x][col].abs().total_cmp(&k[y][col].abs()))

@@ -6,4 +6,6 @@
 //! | Hankel singular values, balanced realization and truncation (square-root method) | [`balance`] |
 
 pub mod balance;
+pub mod frequency_peak;
+pub mod hammarling;
 pub mod lyapunov;

@@ -68,6 +68,17 @@ pub(crate) fn hankel_singular_values<'py>(
     array_nd(py, s, &[n])
 }
 
+/// (A, B, C, D), all Hankel singular values, the returned model's own values, the
+/// verification figures by name, the factor residuals, the method.
+type BalancedOut<'py> = (
+    Quad<'py>,
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Vec<(&'static str, f64)>,
+    [f64; 2],
+    &'static str,
+);
+
 #[pyfunction]
 #[pyo3(signature = (model, order, discrete))]
 pub(crate) fn balanced_realization<'py>(
@@ -75,16 +86,29 @@ pub(crate) fn balanced_realization<'py>(
     model: ModelIn<'py>,
     order: Option<usize>,
     discrete: bool,
-) -> PyResult<(Quad<'py>, Bound<'py, PyAny>, f64, [f64; 2])> {
+) -> PyResult<BalancedOut<'py>> {
     let ss = model_from(&model)?;
     let r = run(py, move || {
         gramian_balance::balanced_realization(&ss, order, discrete)
     })?;
     let n = r.hankel_singular_values.len();
+    let k = r.model_hankel_singular_values.len();
+    let figures = vec![
+        ("error_bound", r.error_bound),
+        ("error_estimate", r.error_estimate),
+        ("error_frequency", r.error_frequency),
+        ("error_allowance", r.error_allowance),
+        ("hinf_estimate", r.hinf_estimate),
+        ("hankel_accuracy", r.hankel_accuracy),
+        ("balance_residual", r.balance_residual),
+        ("balance_relative_residual", r.balance_relative_residual),
+    ];
     Ok((
         quad(py, r.realization, false)?,
         array_nd(py, r.hankel_singular_values, &[n])?,
-        r.error_bound,
+        array_nd(py, r.model_hankel_singular_values, &[k])?,
+        figures,
         r.residuals,
+        r.method,
     ))
 }

@@ -169,9 +169,41 @@ def gramians(a: Any, b: Any, c: Any, *, discrete: bool = False) -> Tuple[np.ndar
 def hankel_singular_values(a: Any, b: Any, c: Any, *, discrete: bool = False) -> np.ndarray:
     r"""Hankel singular values of a stable model, descending: ``sqrt(eig(Wc Wo))``.
 
-    Computed as the singular values of ``Lo^T Lc`` for square-root factors of the Gramians
-    (``Wc = Lc Lc^T``, ``Wo = Lo Lo^T``); the product ``Wc Wo`` is never formed. Small
-    values are accurate only to about ``n * eps * sigma_1`` absolutely.
+    Computed as the singular values of ``Lo^T Lc``, where ``Wc = Lc Lc^T`` and
+    ``Wo = Lo Lo^T`` are Cholesky factors computed directly by Hammarling's method (1982)
+    on one real Schur form of A, after an exact power-of-two balancing of the states; no
+    Gramian and no product ``Wc Wo`` is formed, nothing is clipped.
+
+    Parameters
+    ----------
+    a : (n, n) array_like
+    b : (n, m) array_like
+    c : (p, n) array_like
+    discrete : bool, default False
+        Stein instead of Lyapunov equations.
+
+    Returns
+    -------
+    (n,) ndarray
+        Descending, all positive for a model that is controllable and observable to
+        working precision.
+
+    Raises
+    ------
+    ModelError
+        For inconsistent shapes, non-finite data, or an unstable model (in continuous time,
+        a model whose eigenvalues all lie inside the unit circle is named as looking
+        discrete, with ``discrete=True`` as the fix).
+
+    Notes
+    -----
+    Accuracy: ``|sigma_i - exact_i| <= hankel_accuracy + 2e-10 sigma_i`` measured on the
+    ill-conditioned families of the README (Gramian condition numbers to 1e28), with
+    ``hankel_accuracy = n eps (|| |Uo^T P| |Uc| ||_F + sigma_1)`` (the triangular factors;
+    reported by
+    :func:`balanced_realization` in ``.info``): values well above it are accurate
+    relative to themselves, smaller ones only absolutely. Invariant under power-of-two
+    state scalings to that accuracy; ``sigma_1 <= ||G - D||_inf`` (Glover 1984).
 
     Examples
     --------
@@ -189,37 +221,56 @@ def balanced_realization(
     r"""A balanced realization (equal, diagonal Gramians), truncated to ``order`` states.
 
     ``T^-1 Wc T^-T = T^T Wo T = diag(sigma_1, ..., sigma_r)``, the Hankel singular values.
-    Truncation keeps stability, and the transfer matrices obey
-    ``||G - G_r||_inf <= 2 * (sigma_{r+1} + ... + sigma_n)``.
+    Truncation keeps stability, and the transfer matrices obey Glover's bound
+    ``||G - G_r||_inf <= 2 * (sum of the distinct discarded sigma_i)``. The result is
+    verified against the input before it is returned (see Notes).
 
     Parameters
     ----------
     a, b, c, d : array_like
         A stable model (n, n), (n, m), (p, n), (p, m).
     order : int, optional
-        States to keep. Default: the Hankel singular values above ``n * eps * sigma_1``
-        (all of them for a minimal model; the numerically zero ones cannot be balanced).
+        States to keep. Default: the Hankel singular values above
+        ``max(n * eps * sigma_1, hankel_accuracy)`` (all of them for a minimal model; values
+        at rounding level cannot be balanced).
     discrete : bool, default False
 
     Returns
     -------
     Realization
         ``.info`` holds ``"hankel_singular_values"`` (all of them, descending),
-        ``"error_bound"`` (twice the sum of the discarded ones) and ``"residuals"`` (relative
-        residuals of the two Gramian equations).
+        ``"model_hankel_singular_values"`` (the diagonal of the returned model's Gramians:
+        the leading values in continuous time; a discrete-time truncation is balanced
+        again to its own), ``"hankel_accuracy"`` (absolute rounding level of the values),
+        ``"error_bound"`` (twice the sum of the distinct discarded values),
+        ``"error_estimate"`` and ``"error_frequency"`` (a lower estimate of
+        ``||G - G_r||_inf`` and where it was found), ``"error_allowance"`` (what the
+        estimate may exceed the bound by: accuracy of the values and evaluation rounding),
+        ``"hinf_estimate"`` (lower estimate of ``||G - D||_inf``),
+        ``"balance_residual"`` (``max |W - diag(sigma)|`` over both Gramians of the returned
+        model, relative to sigma_1), ``"balance_relative_residual"`` (entry (i, j) divided
+        by ``sqrt(sigma_i sigma_j)``), ``"residuals"`` (relative residuals of the two
+        factor equations) and ``"method"``.
 
     Raises
     ------
     ModelError
-        For inconsistent shapes, non-finite data, an unstable model, or an ``order`` above n
-        or above the number of numerically nonzero Hankel singular values.
+        For inconsistent shapes, non-finite data, an unstable model, an ``order`` above n
+        or above the number of values above the rounding level, or a result that fails its
+        verification: ``sigma_1`` above ``hinf_estimate``, ``error_estimate`` above
+        ``error_bound + error_allowance``, or ``balance_residual`` above 1e-8.
 
     Notes
     -----
-    Square-root balancing (Laub, Heath, Paige & Ward 1987): Gramians by Bartels–Stewart,
-    factors from their symmetric eigen-decompositions, the SVD ``Lo^T Lc = U S Z^T``, and
-    ``T = Lc Z_r S_r^(-1/2)`` with left inverse ``S_r^(-1/2) U_r^T Lo^T``. The bound is
-    Glover's (1984); it holds in discrete time too (Al-Saggaf & Franklin 1987).
+    Cholesky factors of both Gramians by Hammarling's method (1982) on one real Schur form
+    of the power-of-two balanced model; the SVD ``Lo^T Lc = U S Z^T``. Full order:
+    square-root balancing (Laub, Heath, Paige & Ward 1987), ``T = Lc Z S^(-1/2)``.
+    Truncation: the balancing-free square-root projection (Varga 1991) onto orthonormal
+    bases of ``range(Lc Z_r)`` and ``range(Lo U_r)``, then that r-state model balanced the
+    same way. Verification: the Gramians of the returned model from its own factors; the
+    H-infinity estimates on a frequency grid through the poles with golden-section
+    refinement of the three largest peaks. The bound is Glover's (1984); it holds in
+    discrete time too (Al-Saggaf & Franklin 1987).
 
     Examples
     --------

@@ -28,12 +28,12 @@ def balanced_realization(
     a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, order: Optional[int], discrete: bool
 ) -> Tuple[Arrays4, Dict[str, Any]]:
     """``(realization arrays, info)`` of the balanced (optionally truncated) realization."""
-    (ra, rb, rc, rd), hsv, bound, residuals = _core.balanced_realization((a, b, c, d), order, discrete)
+    (ra, rb, rc, rd), hsv, own, figures, residuals, method = _core.balanced_realization((a, b, c, d), order, discrete)
     hsv.flags.writeable = False
-    # + 0.0: an empty sum in the core is -0.0, and a bound reads better without the sign
-    info = {
-        "hankel_singular_values": hsv,
-        "error_bound": float(bound) + 0.0,
-        "residuals": (float(residuals[0]), float(residuals[1])),
-    }
+    own.flags.writeable = False
+    info: Dict[str, Any] = {"hankel_singular_values": hsv, "model_hankel_singular_values": own}
+    # + 0.0: an empty sum in the core is -0.0, and a figure reads better without the sign
+    info.update((name, float(value) + 0.0) for name, value in figures)
+    info["residuals"] = (float(residuals[0]), float(residuals[1]))
+    info["method"] = str(method)
     return (ra, rb, rc, rd), info
