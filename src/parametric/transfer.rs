@@ -34,10 +34,12 @@
 //! number of terms of `c_k` is bounded by both the dense count `Π_i (k·d_i + 1)` (`d_i` the
 //! largest degree of parameter i in `M_A`) and the count of monomials of total degree at most
 //! `k·t` (`t` the largest total degree), and the work by n³ products per step of that many
-//! terms with the terms of an entry of `M_A`. The estimate, an upper bound for dense
-//! entries, is made before the work starts and a request beyond
-//! [`PARAMETRIC_TIME_BUDGET_SECONDS`] is refused; a very sparse model may be refused although
-//! it would finish in time.
+//! terms with the terms of an entry of `M_A`; for sparse matrices the path count
+//! `(k + 1) R^k` (R the largest row sum of the entries' term counts) is the smaller bound.
+//! The estimate, an upper bound, is made before the work starts and a request beyond
+//! [`PARAMETRIC_TIME_BUDGET_SECONDS`] is refused; the clock is also checked after every step
+//! of the recursion, and a run whose projected time passes four times the budget is stopped
+//! and refused (never a partial result).
 //!
 //! # References
 //! D. K. Faddeev and V. N. Faddeeva, *Computational Methods of Linear Algebra*, Freeman 1963;
@@ -53,7 +55,6 @@ use super::polynomial::Polynomial;
 use super::rational_function::RationalFunction;
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
-use crate::recover::faddeev_leverrier::faddeev_leverrier;
 use crate::scalar::Scalar;
 use crate::state_space::StateSpace;
 
@@ -145,21 +146,40 @@ fn profile<'a>(
     (degrees, total, terms)
 }
 
+/// The largest row sum of the entries' term counts: `(A^k)_ij` has at most its k-th power
+/// terms (a path count), which bounds sparse matrices far below the degree counts.
+fn row_term_sum(a: &Matrix<Polynomial>) -> f64 {
+    (0..a.rows())
+        .map(|i| {
+            (0..a.cols())
+                .map(|j| a.get(i, j).term_count())
+                .sum::<usize>()
+        })
+        .max()
+        .unwrap_or(0)
+        .max(1) as f64
+}
+
 /// Estimated seconds and the bound on the terms of the largest result coefficient.
 fn estimate(a: &Cleared, b: &Cleared, c: &Cleared) -> (f64, f64) {
     let n = a.m.rows();
     let (p, m) = (c.m.rows(), b.m.cols());
     let (degrees, total, a_terms) = profile([&a.m]);
     let (_, _, bc_terms) = profile([&b.m, &c.m]);
+    let row_sum = row_term_sum(&a.m);
+    // N_k = A^k + c_1 A^(k−1) + ... + c_k I: both bounds apply (k + 1 such terms)
+    let bound = |k: usize| {
+        term_bound(k, &degrees, total).min((k as f64 + 1.0) * row_sum.powi(k as i32).min(1e30))
+    };
     let mut products = 0.0f64;
     for k in 1..=n {
-        let previous = term_bound(k - 1, &degrees, total);
+        let previous = bound(k - 1);
         // A N_{k−1}: n³ products of an entry of M_A with an entry of N_{k−1}
         products += (n as f64).powi(3) * a_terms as f64 * previous;
         // C N_{k−1} B: p·n·(n + m) products
         products += (p * n * (n + m)) as f64 * bc_terms as f64 * previous;
     }
-    let largest = term_bound(n, &degrees, total) * (bc_terms.max(1) as f64).powi(2);
+    let largest = bound(n) * (bc_terms.max(1) as f64).powi(2);
     (products * SECONDS_PER_TERM_PRODUCT, largest)
 }
 
@@ -201,6 +221,49 @@ fn reduced(numer: Polynomial, bases: &[(&Polynomial, usize)]) -> RationalFunctio
     RationalFunction::from_reduced(rest, denom)
 }
 
+/// The recursion of [`faddeev_leverrier`] with the clock checked after every step: the
+/// estimate before the work is an upper bound for dense entries, and this stops a request
+/// whose actual growth still passes the budget (a refusal, never a partial result).
+fn recursion_within_budget(
+    a: &Matrix<Polynomial>,
+) -> Result<(Vec<Polynomial>, Vec<Matrix<Polynomial>>)> {
+    let n = a.rows();
+    let started = std::time::Instant::now();
+    let mut coeffs = vec![Polynomial::one()];
+    let mut adjugates = Vec::with_capacity(n);
+    if n == 0 {
+        return Ok((coeffs, adjugates));
+    }
+    let mut current = Matrix::identity(n);
+    for k in 1..=n {
+        let mut product = a.matmul(&current);
+        let ck = product
+            .trace()
+            .neg()
+            .div_exact(&Polynomial::from_i64(k as i64));
+        adjugates.push(current);
+        if k < n {
+            for i in 0..n {
+                let v = product.get(i, i).add(&ck);
+                product.set(i, i, v);
+            }
+        }
+        coeffs.push(ck);
+        current = product;
+        let elapsed = started.elapsed().as_secs_f64();
+        if k < n && elapsed * (n as f64 / k as f64) > 4.0 * PARAMETRIC_TIME_BUDGET_SECONDS {
+            return Err(refuse(
+                n,
+                format!(
+                    "the recursion took {elapsed:.1} s for step {k} of {n}, and the remaining steps grow; \
+                     stopped before the budget of {PARAMETRIC_TIME_BUDGET_SECONDS:.0} s is far exceeded"
+                ),
+            ));
+        }
+    }
+    Ok((coeffs, adjugates))
+}
+
 /// Numerator (p, m, n+1 row-major) and monic denominator (n+1) of the transfer matrix.
 ///
 /// # Errors
@@ -230,7 +293,7 @@ pub fn parametric_transfer_function(
             ),
         ));
     }
-    let (coeffs, adjugates) = faddeev_leverrier(&a.m);
+    let (coeffs, adjugates) = recursion_within_budget(&a.m)?;
     let la = &a.denominator;
     let den = coeffs
         .iter()
@@ -263,7 +326,7 @@ pub fn parametric_transfer_function(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::recover::faddeev_leverrier::transfer_function;
+    use crate::recover::faddeev_leverrier::{faddeev_leverrier, transfer_function};
     use num_bigint::BigInt;
 
     fn x(i: usize) -> Polynomial {

@@ -14,6 +14,10 @@ _LATEX_MAX = LATEX_MAX
 
 
 def _latex_entry(x: Any) -> str:
+    if type(x).__module__.startswith("sympy"):  # the entries of a parametric realization
+        import sympy
+
+        return str(sympy.latex(x))
     if isinstance(x, Fraction):
         if x.denominator == 1:
             return str(x.numerator)
