@@ -164,6 +164,14 @@ def realize_expression(
         result holds :class:`fractions.Fraction`\ s. False: the coefficients are evaluated
         to float64 (so ``pi``, ``sqrt(2)`` and sympy Floats are accepted).
 
+        Parameters: with ``exact=True`` every free symbol other than ``symbol`` is a
+        parameter, and the coefficients may be rational functions of them (``k / J``);
+        the realization is then computed in the Rust core over the parameters' rational
+        functions (each entry in lowest terms) and holds sympy expressions, with
+        ``info["parameters"]`` the symbols. A leading denominator coefficient that is a
+        nonzero function of the parameters counts as nonzero; the result is valid where it
+        and no entry denominator vanishes. ``"modal"`` is refused with parameters.
+
     Returns
     -------
     Realization
@@ -187,6 +195,12 @@ def realize_expression(
     [[Fraction(0, 1), Fraction(1, 1)], [Fraction(-2, 1), Fraction(-3, 1)]]
     >>> r.c.tolist()
     [[Fraction(3, 2), Fraction(1, 2)]]
+
+    With parameters (a mass m, damping b, stiffness k):
+
+    >>> m, b, k = sympy.symbols("m b k")
+    >>> sw.realize_expression(1 / (m * s**2 + b * s + k), s).a.tolist()
+    [[0, 1], [-k/m, -b/m]]
     """
     sympy = require("sympy", "realize_expression")
     if not isinstance(symbol, sympy.Symbol):
