@@ -47,7 +47,8 @@ def _check_against_sympy(a, b, c, d):
     return num, den
 
 
-# Orders 2 to 7 (order 8: the mass-spring chain below); the larger ones sparser, so that sympy's own route (the reference) stays quick.
+# Orders 2 to 7 (order 8: the mass-spring chain below); the larger ones sparser, so that
+# sympy's own route (the reference) stays quick.
 CASES = [
     (2, 2, 1, 1, 0.9),
     (3, 3, 2, 1, 0.7),
