@@ -28,6 +28,7 @@ pub mod gramian;
 pub mod identify;
 pub mod krylov;
 pub mod matrix;
+pub mod parametric;
 pub mod poly;
 pub mod poly_lcm;
 pub mod realize;

@@ -185,11 +185,23 @@ def _input_arrays(obj, out, depth=0):
     return out
 
 
+def _finite_sympy(x):
+    """A sympy expression or Poly (the entries of parametric results) free of infinities and NaN."""
+    if not type(x).__module__.startswith("sympy"):
+        return False
+    import sympy
+
+    expr = x.as_expr() if isinstance(x, sympy.Poly) else x
+    return not expr.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo)
+
+
 def _check_finite(leaf):
     if isinstance(leaf, np.ndarray):
         if leaf.dtype == object:
-            bad = [x for x in leaf.reshape(-1) if not isinstance(x, Fraction)]
-            assert not bad, f"an exact result holds non-Fraction entries {bad[:3]!r}"
+            bad = [x for x in leaf.reshape(-1) if not (isinstance(x, Fraction) or _finite_sympy(x))]
+            assert not bad, (
+                f"an exact result holds entries that are neither Fractions nor finite sympy objects {bad[:3]!r}"
+            )
         else:
             assert leaf.dtype.kind in "fcbiu", f"result of dtype {leaf.dtype}"
             assert np.all(np.isfinite(leaf)), f"a result is not finite: {leaf!r}"

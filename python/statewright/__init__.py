@@ -13,6 +13,7 @@ linear time-invariant models, with a Rust core.
 from ._api.batch import realize_batch, transfer_function_batch
 from ._api.identify import balanced_realization, gramians, hankel_singular_values, realize_markov
 from ._api.interop import from_scipy, realize_expression
+from ._api.parametric import parametric_transfer_function
 from ._api.realize import realize
 from ._api.recover import characteristic_polynomial, faddeev_leverrier, transfer_function
 from ._api.structure import (
@@ -89,4 +90,5 @@ __all__ = [
     "zeros_poles_gain",
     "realize_zeros_poles_gain",
     "invariant_zeros_batch",
+    "parametric_transfer_function",
 ]

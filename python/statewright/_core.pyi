@@ -1,7 +1,7 @@
 """Type stubs for the compiled core (the PyO3 binding layer). Private: use the functions
 re-exported by ``statewright``, which validate their input first."""
 
-from typing import Any, Dict, List, Optional, Tuple, Union
+from typing import Any, Dict, List, Optional, Sequence, Tuple, Union
 
 import numpy as np
 import numpy.typing as npt
@@ -95,3 +95,17 @@ def realize_zeros_poles_gain(
     zeros_re: _F64, zeros_im: _F64, poles_re: _F64, poles_im: _F64, gain: float, form: str
 ) -> _Quad: ...
 def invariant_zeros_batch(a: _F64, b: _F64, c: _F64, d: _F64, tol: Optional[float]) -> Tuple[_F64, _F64, List[int]]: ...
+
+# parametric models, in the plain format of _base/symbolic.py: a polynomial is a list of
+# (exponents, numerator, denominator) terms, an entry a (numerator, denominator) pair of
+# polynomials, a matrix (rows, cols, entries row-major)
+_PlainPoly = List[Tuple[Sequence[int], int, int]]
+_PlainEntry = Tuple[_PlainPoly, _PlainPoly]
+_PlainMatrix = Tuple[int, int, List[_PlainEntry]]
+
+def parametric_transfer_function(
+    a: _PlainMatrix, b: _PlainMatrix, c: _PlainMatrix, d: _PlainMatrix
+) -> Tuple[List[_PlainEntry], List[_PlainEntry]]: ...
+def realize_parametric(
+    num: List[_PlainEntry], den: List[_PlainEntry], form: str
+) -> Tuple[_PlainMatrix, _PlainMatrix, _PlainMatrix, _PlainMatrix]: ...

@@ -16,6 +16,7 @@ mod convert;
 mod errors;
 mod forms;
 mod identify;
+mod parametric;
 mod realize;
 mod recover;
 mod structure;
@@ -59,6 +60,12 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(identify::gramians, m)?)?;
     m.add_function(wrap_pyfunction!(identify::hankel_singular_values, m)?)?;
     m.add_function(wrap_pyfunction!(identify::balanced_realization, m)?)?;
+    // parametric
+    m.add_function(wrap_pyfunction!(
+        parametric::parametric_transfer_function,
+        m
+    )?)?;
+    m.add_function(wrap_pyfunction!(parametric::realize_parametric, m)?)?;
     // batch
     m.add_function(wrap_pyfunction!(batch::realize_batch, m)?)?;
     m.add_function(wrap_pyfunction!(batch::transfer_function_batch, m)?)?;

@@ -14,10 +14,12 @@ from typing import Any, Dict, List, Optional, Tuple, Union
 
 import numpy as np
 
+from .._base import symbolic as sym
 from .._base import validate as v
 from .._compute.interop import require
 from .._core import ModelError
 from .._results.realization import Realization
+from .parametric import realize_parametric_expression
 from .realize import FORMS, realize
 
 __all__ = ["realize_expression", "from_scipy"]
@@ -36,8 +38,9 @@ def _symbol_names(symbols: Any) -> str:
     return ", ".join(sorted(str(x) for x in symbols))
 
 
-def _polynomial_parts(sympy: Any, expr: Any, symbol: Any) -> Tuple[Any, Any]:
-    """(numerator, denominator) as sympy Polys in ``symbol``, checked."""
+def _polynomial_parts(sympy: Any, expr: Any, symbol: Any, exact: bool) -> Tuple[Any, Any]:
+    """(numerator, denominator) as sympy Polys in ``symbol``, checked (other symbols, the
+    parameters, only when ``exact``)."""
     bad = (sympy.zoo, sympy.nan, sympy.oo, -sympy.oo)
     if isinstance(expr, (tuple, list, sympy.Tuple)):
         if len(expr) != 2:
@@ -53,10 +56,11 @@ def _polynomial_parts(sympy: Any, expr: Any, symbol: Any) -> Tuple[Any, Any]:
             if part.has(*bad):
                 raise ModelError(f"expr: the {which} {part} is not finite")
             others = part.free_symbols - {symbol}
-            if others:
+            if others and not exact:
                 raise ModelError(
                     f"expr: the {which} contains symbols other than {symbol} ({_symbol_names(others)}); "
-                    "substitute numbers for them first (expr.subs(...))"
+                    "substitute numbers for them first (expr.subs(...)), or keep exact=True for a "
+                    "realization in the parameters"
                 )
             if not part.is_polynomial(symbol):
                 raise ModelError(f"expr: the {which} {part} is not a polynomial in {symbol}")
@@ -78,10 +82,11 @@ def _polynomial_parts(sympy: Any, expr: Any, symbol: Any) -> Tuple[Any, Any]:
         if expr.has(*bad):
             raise ModelError(f"expr: {expr} is not finite")
         others = expr.free_symbols - {symbol}
-        if others:
+        if others and not exact:
             raise ModelError(
                 f"expr: contains symbols other than {symbol} ({_symbol_names(others)}); "
-                "substitute numbers for them first (expr.subs(...))"
+                "substitute numbers for them first (expr.subs(...)), or keep exact=True for a "
+                "realization in the parameters"
             )
         if expr.is_rational_function(symbol) is not True:
             raise ModelError(
@@ -159,6 +164,14 @@ def realize_expression(
         result holds :class:`fractions.Fraction`\ s. False: the coefficients are evaluated
         to float64 (so ``pi``, ``sqrt(2)`` and sympy Floats are accepted).
 
+        Parameters: with ``exact=True`` every free symbol other than ``symbol`` is a
+        parameter, and the coefficients may be rational functions of them (``k / J``);
+        the realization is then computed in the Rust core over the parameters' rational
+        functions (each entry in lowest terms) and holds sympy expressions, with
+        ``info["parameters"]`` the symbols. A leading denominator coefficient that is a
+        nonzero function of the parameters counts as nonzero; the result is valid where it
+        and no entry denominator vanishes. ``"modal"`` is refused with parameters.
+
     Returns
     -------
     Realization
@@ -182,6 +195,12 @@ def realize_expression(
     [[Fraction(0, 1), Fraction(1, 1)], [Fraction(-11, 1), Fraction(-5, 1)]]
     >>> r.c.tolist()
     [[Fraction(9, 2), Fraction(7, 2)]]
+
+    With parameters (a mass m, damping b, stiffness k):
+
+    >>> m, b, k = sympy.symbols("m b k")
+    >>> sw.realize_expression(1 / (m * s**2 + b * s + k), s).a.tolist()
+    [[0, 1], [-k/m, -b/m]]
     """
     sympy = require("sympy", "realize_expression")
     if not isinstance(symbol, sympy.Symbol):
@@ -192,7 +211,15 @@ def realize_expression(
         raise ModelError(
             "form: 'modal' is not offered in exact arithmetic (the poles are not rational in general); pass exact=False"
         )
-    num, den = _polynomial_parts(sympy, expr, symbol)
+    num, den = _polynomial_parts(sympy, expr, symbol, exact)
+    params = sym.parameters_of(sympy, (num.as_expr(), den.as_expr()), symbol)
+    if params:
+        if form == "modal":
+            raise ModelError(
+                "form: 'modal' is not offered for parametric coefficients (the poles are not rational "
+                "functions of the parameters in general)"
+            )
+        return realize_parametric_expression(sympy, num, den, symbol, params, form)
     coeffs: List[List[Union[Fraction, float]]] = []
     for poly, which in ((num, "numerator"), (den, "denominator")):
         if exact:

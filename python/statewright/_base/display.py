@@ -39,6 +39,10 @@ _NOT_RECORDED = object()  # an object without a sample_time attribute: no time b
 def latex_entry(x: Any) -> str:
     """One entry: a Fraction as ``\\frac``, a float to 6 significant digits with powers of
     ten written out, zero as 0."""
+    if type(x).__module__.startswith("sympy"):  # the entries of a parametric realization
+        import sympy
+
+        return str(sympy.latex(x))
     if isinstance(x, Fraction):
         if x.denominator == 1:
             return str(x.numerator)
