@@ -130,7 +130,7 @@ def hidden_modes() -> nbformat.NotebookNode:
         new_code_cell(
             "s = sw.controllability_staircase(a, b, c)\n"
             "print('default tol', s.tol, '-> controllable dimension', s.rank, 'of', s.n_states)\n"
-            "for i, (kept, dropped) in enumerate(s.margins):\n"
+            "for i, (kept, dropped) in enumerate(s.rank_gaps):\n"
             "    print(f'step {i+1}: smallest singular value kept {kept}, largest dropped {dropped:.2e}')"
         ),
         new_markdown_cell(

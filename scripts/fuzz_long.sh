@@ -4,4 +4,4 @@
 # plus the two fixed-input checks. Run from the project root after `pip install '.[test]'`.
 # Prints hypothesis's per-test statistics; exits non-zero on any failure or hang.
 set -e
-STATEWRIGHT_FUZZ_EXAMPLES=5000 exec python -m pytest tests/test_fuzz.py -q -p no:cacheprovider --hypothesis-show-statistics "$@"
+STATEWRIGHT_FUZZ_EXAMPLES=5000 exec python -m pytest tests/*/test_fuzz_*.py -q -p no:cacheprovider --hypothesis-show-statistics "$@"

@@ -98,7 +98,7 @@ pub fn realize_batch(
         });
     }
     let n = n_plus_1 - 1;
-    let total = count.checked_mul(n * n + 2 * n + 1).unwrap_or(usize::MAX);
+    let total = count.saturating_mul(n * n + 2 * n + 1);
     check_size("den", total)?;
     // Chunks must exist for every model even when n = 0, so each buffer has at least one slot
     // per model; the padding is dropped afterwards.
@@ -174,7 +174,7 @@ pub fn transfer_function_batch_with(
         return hessenberg_batch(a, b, c, d, count, (n, m, p)).map(|r| r.transfer);
     }
     let per_num = p * m * (n + 1);
-    let total = count.checked_mul(per_num + n + 1).unwrap_or(usize::MAX);
+    let total = count.saturating_mul(per_num + n + 1);
     check_size("a", total)?;
     let slot = per_num.max(1); // as in realize_batch: one chunk per model even when p·m = 0
     let (mut num, mut den) = (vec![0.0; count * slot], vec![0.0; count * (n + 1)]);

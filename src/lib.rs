@@ -5,6 +5,22 @@
 //! `python` cargo feature. Every public routine returns [`ModelError`] for bad input and
 //! never panics on it.
 
+// Lints allowed crate-wide, each on purpose:
+// - index loops mirror the formulas of the numerical methods (row i, column j);
+// - `!(x >= lo && x < hi)` and `!(a < b)` are the NaN-rejecting comparisons (a NaN fails
+//   every ordered comparison, so the negated form refuses it where `x < lo || x >= hi`
+//   would let it through);
+// - the batch kernels take flat buffers with their dimensions as separate arguments;
+// - the double-double type names its error-free steps `add`, `neg` as methods, without
+//   operator overloading, so the cost of each step stays visible.
+#![allow(
+    clippy::needless_range_loop,
+    clippy::neg_cmp_op_on_partial_ord,
+    clippy::manual_range_contains,
+    clippy::too_many_arguments,
+    clippy::should_implement_trait
+)]
+
 pub mod balance;
 pub mod batch;
 pub mod error;

@@ -10,10 +10,10 @@ import numpy as np
 
 from swtest_helpers import EPS
 
-
 # --------------------------------------------------------------------------------------
 # random matrices with controlled properties
 # --------------------------------------------------------------------------------------
+
 
 def orthogonal(n, rng):
     """A random orthogonal matrix (QR of a Gaussian matrix, signs fixed: Haar distributed)."""
@@ -64,6 +64,7 @@ def random_blocks(nc, m, rng):
 # planted systems
 # --------------------------------------------------------------------------------------
 
+
 def planted_staircase(blocks, n, m, p, rng, scale=1.0):
     """(A, B, C) in controllability staircase form with the given step sizes.
 
@@ -85,9 +86,9 @@ def planted_staircase(blocks, n, m, p, rng, scale=1.0):
     for i in range(len(blocks)):
         r0, r1 = starts[i], starts[i + 1]
         # nothing below the next step in the columns of step i
-        A[starts[min(i + 2, len(blocks))]:, r0:r1] = 0.0
+        A[starts[min(i + 2, len(blocks))] :, r0:r1] = 0.0
         if i + 1 < len(blocks):
-            A[r1:starts[i + 2], r0:r1] = scale * full_rank_block(blocks[i + 1], blocks[i], rng)
+            A[r1 : starts[i + 2], r0:r1] = scale * full_rank_block(blocks[i + 1], blocks[i], rng)
         else:
             A[r1:, r0:r1] = 0.0
     return A, B, C
@@ -101,12 +102,15 @@ def hide(A, B, C, S):
     return S @ A @ Sinv, S @ B, C @ Sinv
 
 
-KALMAN_PATTERN = np.array([
-    [1, 0, 1, 0],
-    [1, 1, 1, 1],
-    [0, 0, 1, 0],
-    [0, 0, 1, 1],
-], dtype=bool)
+KALMAN_PATTERN = np.array(
+    [
+        [1, 0, 1, 0],
+        [1, 1, 1, 1],
+        [0, 0, 1, 0],
+        [0, 0, 1, 1],
+    ],
+    dtype=bool,
+)
 
 
 def part_slices(sizes):
@@ -158,6 +162,7 @@ def expected_kalman_subspaces(sizes, S):
 # --------------------------------------------------------------------------------------
 # subspaces and responses
 # --------------------------------------------------------------------------------------
+
 
 def orth(X):
     """Orthonormal basis of the range of X (X of full column rank)."""

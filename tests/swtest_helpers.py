@@ -28,6 +28,7 @@ ALL_FORMS = COMPANION_FORMS + ("modal",)
 # exact numbers
 # --------------------------------------------------------------------------------------
 
+
 def frac(x):
     """Exact Fraction of an int, Fraction, float (exact binary value) or decimal string."""
     if isinstance(x, Fraction):
@@ -55,6 +56,7 @@ def to_float(arr):
 # --------------------------------------------------------------------------------------
 # expected canonical forms (built from the API.md table, exact)
 # --------------------------------------------------------------------------------------
+
 
 def normalized(num, den):
     """(b, d): num padded to den's grid and both divided by den's leading coefficient.
@@ -151,25 +153,29 @@ def expected_form(num, den, form):
 # frequency responses
 # --------------------------------------------------------------------------------------
 
-def tf_value(num, den, s):
+
+def transfer_function_value(num, den, s):
     """num(s)/den(s) in complex floating point (highest power first)."""
     num = np.asarray([complex(float(x)) for x in num])
     den = np.asarray([complex(float(x)) for x in den])
     return np.polyval(num, s) / np.polyval(den, s)
 
 
-def ss_value(A, B, C, D, s):
+def state_space_value(A, B, C, D, s):
     """C (sI - A)^-1 B + D by a dense solve (numpy)."""
     A = np.asarray(A, dtype=float)
     n = A.shape[0]
     if n == 0:
         return np.asarray(D, dtype=complex)
-    return np.asarray(C, dtype=float) @ np.linalg.solve(s * np.eye(n) - A, np.asarray(B, dtype=float)) + np.asarray(D, dtype=float)
+    return np.asarray(C, dtype=float) @ np.linalg.solve(s * np.eye(n) - A, np.asarray(B, dtype=float)) + np.asarray(
+        D, dtype=float
+    )
 
 
 # --------------------------------------------------------------------------------------
 # exact Faddeev-LeVerrier on float data (integer arithmetic on the scaled dyadic data)
 # --------------------------------------------------------------------------------------
+
 
 def _dyadic_scale(values):
     """Smallest power of two 2**e with every value * 2**e an integer."""
@@ -209,18 +215,18 @@ def exact_faddeev_leverrier(A):
         if k < n:
             N = AN + q * I
             adj_int.append(N)
-    coeffs = [Fraction(ck, scale ** k) for k, ck in enumerate(coeffs_int)]
+    coeffs = [Fraction(ck, scale**k) for k, ck in enumerate(coeffs_int)]
     adjs = []
     for k, Nk in enumerate(adj_int):
         F = np.empty((n, n), dtype=object)
         for i in range(n):
             for j in range(n):
-                F[i, j] = Fraction(Nk[i, j], scale ** k)
+                F[i, j] = Fraction(Nk[i, j], scale**k)
         adjs.append(F)
     return coeffs, adjs
 
 
-def exact_siso_tf(A, B, C, D):
+def exact_scalar_transfer_function(A, B, C, D):
     """Exact (num, den) of a float SISO model: lists of n+1 Fractions."""
     A = np.asarray(A, dtype=float)
     n = A.shape[0]
@@ -255,6 +261,7 @@ def coef_rel_error(x, ref):
 # --------------------------------------------------------------------------------------
 # messages
 # --------------------------------------------------------------------------------------
+
 
 def names_argument(message, name):
     """Does the error message name the argument `name`?

@@ -7,31 +7,30 @@ linear time-invariant models, with a Rust core.
 2
 """
 
-from ._core import ModelError
-from ._objects import Realization
-from ._api import (
-    characteristic_polynomial,
-    controllability_matrix,
-    faddeev_leverrier,
-    observability_matrix,
-    realize,
-    transfer_function,
-)
-from ._interop import from_scipy, realize_expression
-from ._identify import balanced_realization, gramians, hankel_singular_values, realize_markov
-from ._batch import realize_batch, transfer_function_batch
-from ._transfer_matrix import realize_transfer_matrix
-from ._structure import (
+# Layers, bottom to top (tests/package/test_import_graph.py enforces them): _core and
+# _base (validation, exact helpers, display), _compute (core calls on validated arrays),
+# _results (result objects), _api (public functions), and this module's re-exports.
+from ._api.batch import realize_batch, transfer_function_batch
+from ._api.identify import balanced_realization, gramians, hankel_singular_values, realize_markov
+from ._api.interop import from_scipy, realize_expression
+from ._api.realize import realize
+from ._api.recover import characteristic_polynomial, faddeev_leverrier, transfer_function
+from ._api.structure import (
     Decomposition,
     Staircase,
+    controllability_matrix,
     controllability_staircase,
     is_controllable,
     is_observable,
     kalman_decomposition,
     minimal_realization,
+    observability_matrix,
     observability_staircase,
     similarity,
 )
+from ._api.transfer_matrix import realize_transfer_matrix
+from ._core import ModelError
+from ._results.realization import Realization
 
 __version__ = "0.1.0"
 

@@ -18,14 +18,13 @@ from __future__ import annotations
 
 from typing import Any, List, Tuple
 
-import numpy as np
-
-from ._batch import offset_errors as _offset_errors
-from ._batch import realize_batch, transfer_function_batch
-from . import _validate as v
+from ._api.batch import offset_errors as _offset_errors
+from ._api.batch import realize_batch, transfer_function_batch
+from ._base import validate as v
 from ._core import ModelError
 
 __all__ = ["realize_batch_dask", "transfer_function_batch_dask"]
+
 
 def _import_dask() -> Any:
     try:
@@ -49,8 +48,10 @@ def _rows(x: Any, da: Any, arg: str, shape: str) -> Any:
     else:
         arr = da.from_array(v.float_stack(x, arg, ndim, shape), chunks=-1)
     if 0 in arr.shape:
-        raise ModelError(f"{arg}: the batch is empty along a dimension (shape {arr.shape}); "
-                         "call the in-process batch function for empty batches")
+        raise ModelError(
+            f"{arg}: the batch is empty along a dimension (shape {arr.shape}); "
+            "call the in-process batch function for empty batches"
+        )
     arr = arr.astype(float)
     return arr.rechunk({i: -1 for i in range(1, arr.ndim)})
 
@@ -104,8 +105,9 @@ def transfer_function_batch_dask(a: Any, b: Any, c: Any, d: Any) -> Tuple[Any, A
     n, m, p = a.shape[1], b.shape[2], c.shape[1]
     nums, dens = [], []
     start = 0
-    for ab, bb, cb, db, rows in zip(a.to_delayed().ravel(), b.to_delayed().ravel(), c.to_delayed().ravel(),
-                                    d.to_delayed().ravel(), a.chunks[0]):
+    for ab, bb, cb, db, rows in zip(
+        a.to_delayed().ravel(), b.to_delayed().ravel(), c.to_delayed().ravel(), d.to_delayed().ravel(), a.chunks[0]
+    ):
         part = dask.delayed(_offset_errors(transfer_function_batch, start), nout=2)(ab, bb, cb, db)
         nums.append(da.from_delayed(part[0], shape=(rows, p, m, n + 1), dtype=float))
         dens.append(da.from_delayed(part[1], shape=(rows, n + 1), dtype=float))

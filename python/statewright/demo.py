@@ -12,8 +12,15 @@ import numpy as np
 
 import statewright as sw
 
-FORMS = ("controllable_canonical", "observable_canonical", "controller", "observer",
-         "controllability", "observability", "modal")
+FORMS = (
+    "controllable_canonical",
+    "observable_canonical",
+    "controller",
+    "observer",
+    "controllability",
+    "observability",
+    "modal",
+)
 
 
 def _poly(coeffs: np.ndarray) -> str:
@@ -46,11 +53,13 @@ def main() -> None:
         err = np.max(np.abs(rn[0, 0] - np.array([0, 0, 16.0, 240.0])))
         print(f"\n{form}:  poles {np.round(r.poles(), 4)}")
         print("A =\n", r.a, "\nB =", r.b.ravel(), " C =", r.c.ravel(), " D =", r.d.ravel())
-        print(f"  recovered num {_poly(rn[0, 0])} / den {_poly(rd)}  "
-              f"(max coefficient error {err:.1e}; {acc['method']})")
+        print(
+            f"  recovered num {_poly(rn[0, 0])} / den {_poly(rd)}  (max coefficient error {err:.1e}; {acc['method']})"
+        )
         if form == "modal":
-            print(f"  eigenvector condition {r.info['eigenvector_condition']:.3g} "
-                  f"(limit {r.info['condition_limit']:.3g})")
+            print(
+                f"  eigenvector condition {r.info['eigenvector_condition']:.3g} (limit {r.info['condition_limit']:.3g})"
+            )
 
     # 2. Lead compensator: biproper, so the direct term D comes from the division.
     _banner("Lead compensator K(s) = (2.5 s + 10) / (s + 20): the proper case")

@@ -1,0 +1,2 @@
+"""Third layer: the result objects (:class:`Realization`, :class:`Staircase`,
+:class:`Decomposition`). Their convenience methods call ``_compute``, never ``_api``."""

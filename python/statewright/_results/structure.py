@@ -1,0 +1,159 @@
+"""Result objects of the structure routines: :class:`Staircase` and :class:`Decomposition`."""
+
+from __future__ import annotations
+
+import types
+import warnings
+from typing import TYPE_CHECKING, Any, List, Mapping, Optional, Tuple
+
+import numpy as np
+
+from .._base.display import latex_matrix
+from .._base.validate import frozen
+
+if TYPE_CHECKING:  # pragma: no cover - annotations only; never imported at run time
+    from .realization import Realization
+
+__all__ = ["Staircase", "Decomposition"]
+
+
+class Staircase:
+    """A staircase form ``Q^T A Q``, ``Q^T B``, ``C Q`` and the rank decisions behind it.
+
+    Attributes
+    ----------
+    a, b, c : ndarray
+        The transformed matrices (``c`` is None when no C was given).
+    transform : ndarray
+        The orthogonal Q.
+    blocks : list of int
+        Step sizes, summing to ``rank``.
+    rank : int
+        The controllable (or observable) dimension.
+    singular_values : list of ndarray
+        For each step, the singular values of the block whose rank was decided.
+    rank_gaps : list of (float or None, float)
+        The gap each rank decision had: for each step, the smallest singular value kept
+        (None when none was) and the largest one discarded (0.0 when none was), on either
+        side of ``tol``. (``margins`` is a deprecated alias, kept for one version.)
+    tol : float
+        The tolerance used.
+    """
+
+    __slots__ = ("a", "b", "c", "transform", "blocks", "rank", "singular_values", "rank_gaps", "tol", "kind")
+
+    def __init__(self, raw: Tuple[Any, ...], kind: str) -> None:
+        a, b, c, q, blocks, rank, svs, kept, tol = raw
+        self.a: np.ndarray = frozen(a)
+        self.b: np.ndarray = frozen(b)
+        self.c: Optional[np.ndarray] = None if c is None else frozen(c)
+        self.transform: np.ndarray = frozen(q)
+        self.blocks: List[int] = list(blocks)
+        self.rank: int = int(rank)
+        self.singular_values: List[np.ndarray] = [frozen(s) for s in svs]
+        self.rank_gaps: List[Tuple[Optional[float], float]] = [
+            (float(s[k - 1]) if k > 0 else None, float(s[k]) if k < len(s) else 0.0) for s, k in zip(svs, kept)
+        ]
+        self.tol: float = float(tol)
+        self.kind: str = kind
+
+    @property
+    def n_states(self) -> int:
+        return int(self.a.shape[0])
+
+    @property
+    def margins(self) -> List[Tuple[Optional[float], float]]:
+        """Deprecated alias of :attr:`rank_gaps` (the name read as stability margins)."""
+        warnings.warn(
+            "Staircase.margins is deprecated; use Staircase.rank_gaps (the gap of each rank decision)",
+            DeprecationWarning,
+            stacklevel=2,
+        )
+        return self.rank_gaps
+
+    def __reduce__(self) -> Tuple[Any, ...]:
+        kept = [len(s) - sum(1 for x in s if x <= self.tol) for s in self.singular_values]
+        raw = (
+            np.array(self.a),
+            np.array(self.b),
+            None if self.c is None else np.array(self.c),
+            np.array(self.transform),
+            list(self.blocks),
+            self.rank,
+            [np.array(s) for s in self.singular_values],
+            kept,
+            self.tol,
+        )
+        return (Staircase, (raw, self.kind))
+
+    def __repr__(self) -> str:
+        return (
+            f"Staircase({self.kind}, n_states={self.n_states}, rank={self.rank}, blocks={self.blocks}, "
+            f"tol={self.tol:.3g}, rank_gaps={self.rank_gaps})"
+        )
+
+    def _repr_latex_(self) -> str:
+        # Show the block structure: A partitioned at the step boundaries.
+        a = self.a
+        cuts = np.cumsum(self.blocks).tolist()
+        if self.rank < self.n_states:
+            cuts = cuts[:-1] + [self.rank]
+        body = latex_matrix(a)
+        head = rf"\text{{{self.kind} staircase: rank {self.rank} of {self.n_states}, blocks {self.blocks}}}"
+        return "$" + head + r"\quad Q^T A Q = " + body + r",\quad Q^T B = " + latex_matrix(self.b) + "$"
+
+
+class Decomposition:
+    """A Kalman decomposition: ``realization`` = ``(T^-1 A T, T^-1 B, C T, D)``.
+
+    Attributes
+    ----------
+    realization : Realization
+        Parts ordered controllable-and-observable, controllable-and-unobservable,
+        uncontrollable-and-observable, uncontrollable-and-unobservable.
+    transform : ndarray
+        T (each part's columns orthonormal; T itself not orthogonal in general).
+    sizes : tuple of 4 ints
+        Dimensions of the four parts.
+    info : mapping
+        ``"condition"``: 2-norm condition number of T; ``"pattern_residual"``: the largest
+        entry set to zero by the pattern, relative to its matrix's norm.
+    """
+
+    __slots__ = ("realization", "transform", "sizes", "info")
+
+    def __init__(
+        self,
+        realization: "Realization",
+        transform: np.ndarray,
+        sizes: Tuple[int, int, int, int],
+        info: Mapping[str, float],
+    ) -> None:
+        self.realization = realization
+        self.transform: np.ndarray = frozen(transform)
+        self.sizes: Tuple[int, int, int, int] = (int(sizes[0]), int(sizes[1]), int(sizes[2]), int(sizes[3]))
+        self.info = types.MappingProxyType(dict(info))
+
+    def minimal(self) -> "Realization":
+        """The controllable and observable part ``(A11, B1, C1, D)``."""
+        k = self.sizes[0]
+        a, b, c, d = self.realization
+        # the realization's own class: this module sits below the Realization module
+        return type(self.realization)(a[:k, :k], b[:k], c[:, :k], d)
+
+    def __reduce__(self) -> Tuple[Any, ...]:
+        return (Decomposition, (self.realization, np.array(self.transform), self.sizes, dict(self.info)))
+
+    def __repr__(self) -> str:
+        names = (
+            "controllable+observable",
+            "controllable+unobservable",
+            "uncontrollable+observable",
+            "uncontrollable+unobservable",
+        )
+        parts = ", ".join(f"{n}={s}" for n, s in zip(names, self.sizes))
+        return f"Decomposition({parts}; condition of T {self.info['condition']:.3g})"
+
+    def _repr_latex_(self) -> str:
+        head = rf"\text{{Kalman decomposition, sizes {self.sizes}}}\quad T^{{-1}} A T = "
+        return "$" + head + latex_matrix(self.realization.a) + "$"

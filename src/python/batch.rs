@@ -1,0 +1,83 @@
+//! Bindings of the batch functions (rayon in the core, the GIL released for the whole batch).
+
+use super::convert::{array_nd, Quad};
+use super::errors::{run, to_py};
+use super::realize::parse_form;
+use crate::batch;
+use crate::error::ModelError as CoreError;
+use numpy::{PyReadonlyArray2, PyReadonlyArray3};
+use pyo3::prelude::*;
+
+#[pyfunction]
+pub(crate) fn realize_batch<'py>(
+    py: Python<'py>,
+    num: PyReadonlyArray2<'py, f64>,
+    den: PyReadonlyArray2<'py, f64>,
+    form: &str,
+) -> PyResult<Quad<'py>> {
+    let form = parse_form(form)?;
+    let (count, k) = num.as_array().dim();
+    let (count_den, n1) = den.as_array().dim();
+    if count != count_den {
+        return Err(to_py(CoreError::Shape {
+            arg: "den",
+            expected: format!("{count} rows (one per model, as num)"),
+            found: format!("{count_den} rows"),
+        }));
+    }
+    let num: Vec<f64> = num.as_array().iter().copied().collect();
+    let den: Vec<f64> = den.as_array().iter().copied().collect();
+    let r = run(py, move || {
+        batch::realize_batch(&num, k, &den, n1, count, form)
+    })?;
+    let n = r.n;
+    Ok((
+        array_nd(py, r.a, &[count, n, n])?,
+        array_nd(py, r.b, &[count, n, 1])?,
+        array_nd(py, r.c, &[count, 1, n])?,
+        array_nd(py, r.d, &[count, 1, 1])?,
+    ))
+}
+
+#[pyfunction]
+pub(crate) fn transfer_function_batch<'py>(
+    py: Python<'py>,
+    a: PyReadonlyArray3<'py, f64>,
+    b: PyReadonlyArray3<'py, f64>,
+    c: PyReadonlyArray3<'py, f64>,
+    d: PyReadonlyArray3<'py, f64>,
+) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>)> {
+    let (count, n, n2) = a.as_array().dim();
+    let (cb, nb, m) = b.as_array().dim();
+    let (cc, p, nc) = c.as_array().dim();
+    let (cd, pd, md) = d.as_array().dim();
+    let shape_err = |arg: &'static str, expected: String, found: (usize, usize, usize)| {
+        Err(to_py(CoreError::Shape {
+            arg,
+            expected,
+            found: format!("shape {found:?}"),
+        }))
+    };
+    if n2 != n {
+        return shape_err("a", "shape (N, n, n)".to_string(), (count, n, n2));
+    }
+    if (cb, nb) != (count, n) {
+        return shape_err("b", format!("shape ({count}, {n}, m)"), (cb, nb, m));
+    }
+    if (cc, nc) != (count, n) {
+        return shape_err("c", format!("shape ({count}, p, {n})"), (cc, p, nc));
+    }
+    if (cd, pd, md) != (count, p, m) {
+        return shape_err("d", format!("shape ({count}, {p}, {m})"), (cd, pd, md));
+    }
+    let own =
+        |x: &PyReadonlyArray3<'py, f64>| -> Vec<f64> { x.as_array().iter().copied().collect() };
+    let (av, bv, cv, dv) = (own(&a), own(&b), own(&c), own(&d));
+    let t = run(py, move || {
+        batch::transfer_function_batch(&av, &bv, &cv, &dv, count, n, m, p)
+    })?;
+    Ok((
+        array_nd(py, t.num, &[count, p, m, n + 1])?,
+        array_nd(py, t.den, &[count, n + 1])?,
+    ))
+}

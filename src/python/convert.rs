@@ -1,0 +1,162 @@
+//! Conversions between numpy arrays (or Python ints, for exact data) and the core's owned
+//! matrices. Inputs are copied, so results never alias and the GIL can be released.
+
+use super::errors::{to_py, ModelError};
+use crate::error::ModelError as CoreError;
+use crate::matrix::Matrix;
+use crate::state_space::StateSpace;
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::Zero;
+use numpy::{ndarray, PyArray, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
+use pyo3::prelude::*;
+
+/// The four arrays of a model, passed from Python as one tuple `(a, b, c, d)`: the one
+/// argument shape of every binding that takes a model.
+pub(crate) type ModelIn<'py> = (
+    PyReadonlyArray2<'py, f64>,
+    PyReadonlyArray2<'py, f64>,
+    PyReadonlyArray2<'py, f64>,
+    PyReadonlyArray2<'py, f64>,
+);
+
+/// Four arrays handed back to Python: `(A, B, C, D)`.
+pub(crate) type Quad<'py> = (
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+);
+
+pub(crate) fn matrix_from(x: &PyReadonlyArray2<'_, f64>) -> Matrix<f64> {
+    let view = x.as_array();
+    let (r, c) = view.dim();
+    Matrix::from_row_major(r, c, view.iter().copied().collect()).expect("shape from the array")
+}
+
+pub(crate) fn vector_from(x: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
+    x.as_array().iter().copied().collect()
+}
+
+/// An owned core model from the four arrays, shapes checked by the core.
+pub(crate) fn model_from(model: &ModelIn<'_>) -> PyResult<StateSpace<f64>> {
+    let (a, b, c, d) = model;
+    StateSpace::new(
+        matrix_from(a),
+        matrix_from(b),
+        matrix_from(c),
+        matrix_from(d),
+    )
+    .map_err(to_py)
+}
+
+pub(crate) fn array2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {
+    let shape = [m.rows(), m.cols()];
+    array_nd(py, m.into_vec(), &shape)
+}
+
+/// A new C-contiguous array owning `data` (no copy, no Python-level reshape).
+pub(crate) fn array_nd<'py>(
+    py: Python<'py>,
+    data: Vec<f64>,
+    shape: &[usize],
+) -> PyResult<Bound<'py, PyAny>> {
+    let owned = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(shape), data)
+        .map_err(|e| ModelError::new_err(format!("internal error: result shape ({e})")))?;
+    Ok(PyArray::from_owned_array(py, owned).into_any())
+}
+
+/// As [`array2`], marked read-only (the arrays of a frozen Realization).
+pub(crate) fn frozen2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {
+    let shape = [m.rows(), m.cols()];
+    let owned = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(&shape), m.into_vec())
+        .map_err(|e| ModelError::new_err(format!("internal error: result shape ({e})")))?;
+    let arr = PyArray::from_owned_array(py, owned);
+    // SAFETY: the array was created just above and is not shared yet; clearing the
+    // WRITEABLE flag is what numpy's own `setflags(write=False)` does.
+    unsafe {
+        (*arr.as_array_ptr()).fields.flags &= !numpy::npyffi::NPY_ARRAY_WRITEABLE;
+    }
+    Ok(arr.into_any())
+}
+
+/// A model's four matrices as arrays (read-only when `frozen`, for a Realization).
+pub(crate) fn quad<'py>(py: Python<'py>, ss: StateSpace<f64>, frozen: bool) -> PyResult<Quad<'py>> {
+    let out = if frozen { frozen2 } else { array2 };
+    Ok((
+        out(py, ss.a)?,
+        out(py, ss.b)?,
+        out(py, ss.c)?,
+        out(py, ss.d)?,
+    ))
+}
+
+// ---- exact data: matrices travel as (rows, cols, numerators, denominators) of Python ints.
+
+pub(crate) type ExactIn = (usize, usize, Vec<BigInt>, Vec<BigInt>);
+pub(crate) type ExactOut = (usize, usize, Vec<BigInt>, Vec<BigInt>);
+
+pub(crate) fn exact_matrix(arg: &'static str, x: ExactIn) -> PyResult<Matrix<BigRational>> {
+    let (r, c, nums, dens) = x;
+    if nums.len() != r * c || dens.len() != r * c {
+        return Err(to_py(CoreError::Shape {
+            arg,
+            expected: format!("{} entries", r * c),
+            found: format!("{}", nums.len()),
+        }));
+    }
+    let mut data = Vec::with_capacity(r * c);
+    for (p, q) in nums.into_iter().zip(dens) {
+        if q.is_zero() {
+            return Err(to_py(CoreError::BadValue {
+                arg,
+                detail: "a fraction has a zero denominator".into(),
+            }));
+        }
+        data.push(BigRational::new(p, q));
+    }
+    Ok(Matrix::from_row_major(r, c, data).expect("checked length"))
+}
+
+pub(crate) fn exact_vector(arg: &'static str, x: ExactIn) -> PyResult<Vec<BigRational>> {
+    Ok(exact_matrix(arg, x)?.into_vec())
+}
+
+/// An owned exact model from four exact matrices, shapes checked by the core.
+pub(crate) fn exact_model_from(
+    model: (ExactIn, ExactIn, ExactIn, ExactIn),
+) -> PyResult<StateSpace<BigRational>> {
+    let (a, b, c, d) = model;
+    StateSpace::new(
+        exact_matrix("a", a)?,
+        exact_matrix("b", b)?,
+        exact_matrix("c", c)?,
+        exact_matrix("d", d)?,
+    )
+    .map_err(to_py)
+}
+
+pub(crate) fn exact_out(m: Matrix<BigRational>) -> ExactOut {
+    let (r, c) = (m.rows(), m.cols());
+    let (nums, dens) = m
+        .into_vec()
+        .into_iter()
+        .map(|q| (q.numer().clone(), q.denom().clone()))
+        .unzip();
+    (r, c, nums, dens)
+}
+
+pub(crate) fn exact_out_vec(v: Vec<BigRational>) -> ExactOut {
+    let n = v.len();
+    exact_out(Matrix::from_row_major(1, n, v).expect("1 x n"))
+}
+
+/// An exact model's four matrices for Python.
+pub(crate) fn exact_quad(ss: StateSpace<BigRational>) -> (ExactOut, ExactOut, ExactOut, ExactOut) {
+    (
+        exact_out(ss.a),
+        exact_out(ss.b),
+        exact_out(ss.c),
+        exact_out(ss.d),
+    )
+}

@@ -1,0 +1,146 @@
+//! Bindings of the realizations: SISO canonical forms and block forms of transfer matrices.
+
+use super::convert::{
+    exact_matrix, exact_quad, exact_vector, quad, vector_from, ExactIn, ExactOut, Quad,
+};
+use super::errors::{run, run_small, to_py, SMALL_ORDER};
+use crate::error::ModelError as CoreError;
+use crate::matrix::Matrix;
+use crate::realize::transfer_matrix::{self, BlockForm};
+use crate::realize::{self, Form};
+use num_rational::BigRational;
+use numpy::{ndarray, PyReadonlyArray1, PyReadonlyArray3};
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+
+pub(crate) fn parse_form(form: &str) -> PyResult<Form> {
+    form.parse().map_err(to_py)
+}
+
+#[pyfunction]
+pub(crate) fn realize_float<'py>(
+    py: Python<'py>,
+    num: PyReadonlyArray1<'py, f64>,
+    den: PyReadonlyArray1<'py, f64>,
+    form: &str,
+) -> PyResult<(Quad<'py>, Option<Bound<'py, PyDict>>)> {
+    let form = parse_form(form)?;
+    let small = match (num.as_slice(), den.as_slice()) {
+        (Ok(n), Ok(d)) if d.len() < SMALL_ORDER => Some((n, d)),
+        _ => None,
+    };
+    let (ss, modal) = if let Some((num, den)) = small {
+        run_small(|| realize::realize_f64(num, den, form))?
+    } else {
+        let (num, den) = (vector_from(&num), vector_from(&den));
+        run(py, move || realize::realize_f64(&num, &den, form))?
+    };
+    let info = match modal {
+        Some(m) => {
+            let info = PyDict::new(py);
+            info.set_item("eigenvector_condition", m.eigenvector_condition)?;
+            info.set_item("condition_limit", m.condition_limit)?;
+            Some(info)
+        }
+        None => None,
+    };
+    Ok((quad(py, ss, true)?, info))
+}
+
+#[pyfunction]
+pub(crate) fn realize_exact(
+    py: Python<'_>,
+    num: ExactIn,
+    den: ExactIn,
+    form: &str,
+) -> PyResult<(ExactOut, ExactOut, ExactOut, ExactOut)> {
+    let form = parse_form(form)?;
+    if form == Form::Modal {
+        return Err(to_py(CoreError::BadOption {
+            arg: "form",
+            found: "modal".into(),
+            allowed: "a companion form when exact=True (the modal form needs the poles, which are not rational in general)",
+        }));
+    }
+    let (num, den) = (exact_vector("num", num)?, exact_vector("den", den)?);
+    let ss = run(py, move || realize::realize_companion(&num, &den, form))?;
+    Ok(exact_quad(ss))
+}
+
+fn parse_block_form(form: &str) -> PyResult<BlockForm> {
+    form.parse().map_err(to_py)
+}
+
+/// Entries of a (p, m, k) array as p·m coefficient vectors, row-major.
+fn entries_from(x: &PyReadonlyArray3<'_, f64>) -> Vec<Vec<f64>> {
+    let view = x.as_array();
+    let (p, m, _) = view.dim();
+    let mut out = Vec::with_capacity(p * m);
+    for i in 0..p {
+        for j in 0..m {
+            out.push(view.slice(ndarray::s![i, j, ..]).iter().copied().collect());
+        }
+    }
+    out
+}
+
+#[pyfunction]
+#[pyo3(signature = (num, den, form, tol))]
+pub(crate) fn realize_transfer_matrix_float<'py>(
+    py: Python<'py>,
+    num: PyReadonlyArray3<'py, f64>,
+    den: PyReadonlyArray3<'py, f64>,
+    form: &str,
+    tol: Option<f64>,
+) -> PyResult<(Quad<'py>, Bound<'py, PyDict>)> {
+    let form = parse_block_form(form)?;
+    let (p, m, _) = num.as_array().dim();
+    let (pd, md, _) = den.as_array().dim();
+    if (pd, md) != (p, m) {
+        return Err(to_py(CoreError::Shape {
+            arg: "den",
+            expected: format!("shape ({p}, {m}, k) (one denominator per entry of num)"),
+            found: format!("shape ({pd}, {md}, k)"),
+        }));
+    }
+    let (num, den) = (entries_from(&num), entries_from(&den));
+    let (ss, info) = run(py, move || {
+        transfer_matrix::realize_transfer_matrix_f64(p, m, &num, &den, form, tol)
+    })?;
+    let d = PyDict::new(py);
+    d.set_item("block_orders", info.block_orders)?;
+    d.set_item("merge_tol", info.merge_tol)?;
+    d.set_item("denominator_residual", info.denominator_residual)?;
+    Ok((quad(py, ss, true)?, d))
+}
+
+/// `num` and `den` hold one entry per row (p·m rows, row-major over (i, j)).
+#[pyfunction]
+#[pyo3(signature = (num, den, p, m, form))]
+pub(crate) fn realize_transfer_matrix_exact(
+    py: Python<'_>,
+    num: ExactIn,
+    den: ExactIn,
+    p: usize,
+    m: usize,
+    form: &str,
+) -> PyResult<(ExactOut, ExactOut, ExactOut, ExactOut)> {
+    let form = parse_block_form(form)?;
+    let rows = |x: Matrix<BigRational>| -> Vec<Vec<BigRational>> {
+        let c = x.cols();
+        x.into_vec().chunks(c.max(1)).map(|r| r.to_vec()).collect()
+    };
+    let (num, den) = (exact_matrix("num", num)?, exact_matrix("den", den)?);
+    if num.rows() != p * m || den.rows() != p * m || num.cols() == 0 || den.cols() == 0 {
+        return Err(to_py(CoreError::Shape {
+            arg: "den",
+            expected: format!("{} nonempty entries in num and den", p * m),
+            found: format!("{} and {}", num.rows(), den.rows()),
+        }));
+    }
+    let (num, den) = (rows(num), rows(den));
+    let ss = run(py, move || {
+        transfer_matrix::realize_transfer_matrix_exact(p, m, &num, &den, form)
+    })?;
+    Ok(exact_quad(ss))
+}
