@@ -14,6 +14,7 @@
 mod batch;
 mod convert;
 mod errors;
+mod hessenberg;
 mod identify;
 mod realize;
 mod recover;
@@ -57,5 +58,22 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     // batch
     m.add_function(wrap_pyfunction!(batch::realize_batch, m)?)?;
     m.add_function(wrap_pyfunction!(batch::transfer_function_batch, m)?)?;
+    // hessenberg route, batch methods
+    m.add_function(wrap_pyfunction!(
+        hessenberg::characteristic_polynomial_hessenberg,
+        m
+    )?)?;
+    m.add_function(wrap_pyfunction!(
+        hessenberg::transfer_function_hessenberg,
+        m
+    )?)?;
+    m.add_function(wrap_pyfunction!(
+        hessenberg::transfer_function_batch_method,
+        m
+    )?)?;
+    m.add_function(wrap_pyfunction!(
+        hessenberg::transfer_function_batch_hessenberg,
+        m
+    )?)?;
     Ok(())
 }

@@ -58,6 +58,11 @@ pub fn check_order_for_batch(n: usize) -> Result<()> {
     check_recursion_order(n)
 }
 
+/// A square, finite `a` (the check of the float entry points).
+pub fn check_square_finite(a: &Matrix<f64>) -> Result<()> {
+    check_square(a)
+}
+
 /// `Method::Auto` asked for adjugates when the double-double bound does not certify and the
 /// exact fallback would take too long: refuse rather than return an uncertified value silently.
 fn uncertified(n: usize) -> ModelError {
