@@ -57,8 +57,10 @@ def compare(a, b, c, d) -> dict:
     # The exact reference is itself rounded once: allow its half unit.
     slack = np.finfo(float).eps / 2
     ratio = 0.0
-    for x, ref, est in ((den, ref_den, acc["den_error_estimate"]),
-                        (num[0, 0], ref_num[0, 0], acc["num_error_estimate"][0, 0])):
+    for x, ref, est in (
+        (den, ref_den, acc["den_error_estimate"]),
+        (num[0, 0], ref_num[0, 0], acc["num_error_estimate"][0, 0]),
+    ):
         err = np.abs(x - ref) - slack * np.abs(ref)
         with np.errstate(divide="ignore", invalid="ignore"):
             r = np.where(err <= 0, 0.0, err / est)
@@ -73,12 +75,17 @@ def survey(orders, models: int, seed: int = 2026) -> list:
     for family in FAMILIES:
         for n in orders:
             res = [compare(*make_model(n, family, rng)) for _ in range(models)]
-            rows.append({
-                "family": family, "n": n, "models": models,
-                "ours": max(r["ours"] for r in res), "scipy": max(r["scipy"] for r in res),
-                "ratio": max(r["ratio"] for r in res),
-                "not_worse": sum(r["ours"] <= r["scipy"] for r in res),
-            })
+            rows.append(
+                {
+                    "family": family,
+                    "n": n,
+                    "models": models,
+                    "ours": max(r["ours"] for r in res),
+                    "scipy": max(r["scipy"] for r in res),
+                    "ratio": max(r["ratio"] for r in res),
+                    "not_worse": sum(r["ours"] <= r["scipy"] for r in res),
+                }
+            )
     return rows
 
 
@@ -87,12 +94,16 @@ def main() -> None:
     parser.add_argument("--models", type=int, default=50, help="models per family and order")
     args = parser.parse_args()
     rows = survey((4, 8, 16, 24), args.models)
-    print("| poles | n | models | worst rel. error: hessenberg | SciPy ss2tf | worst error / estimate "
-          "| models with hessenberg <= SciPy |")
+    print(
+        "| poles | n | models | worst rel. error: hessenberg | SciPy ss2tf | worst error / estimate "
+        "| models with hessenberg <= SciPy |"
+    )
     print("| --- | --- | --- | --- | --- | --- | --- |")
     for r in rows:
-        print(f"| {r['family']} | {r['n']} | {r['models']} | {r['ours']:.1e} | {r['scipy']:.1e} | "
-              f"{r['ratio']:.2f} | {r['not_worse']} / {r['models']} |")
+        print(
+            f"| {r['family']} | {r['n']} | {r['models']} | {r['ours']:.1e} | {r['scipy']:.1e} | "
+            f"{r['ratio']:.2f} | {r['not_worse']} / {r['models']} |"
+        )
 
 
 if __name__ == "__main__":

@@ -101,6 +101,9 @@ pub struct HessenbergResult<'a> {
 /// A reflection `I − τ v vᵀ` with `(I − τ v vᵀ) x = α e₁`; `τ = 0` (identity, α = x₀)
 /// when x already is a multiple of e₁. Scaled, so no overflow for large entries.
 fn reflector(x: &[f64], v: &mut [f64]) -> (f64, f64) {
+    if x.len() < 2 {
+        return (0.0, x.first().copied().unwrap_or(0.0));
+    }
     let scale = x.iter().fold(0.0f64, |s, e| s.max(e.abs()));
     let tail = x[1..].iter().any(|&e| e != 0.0);
     if scale == 0.0 || !tail {
@@ -606,6 +609,12 @@ mod tests {
     fn zero_order_and_zero_input_models() {
         let (den, est) = characteristic_polynomial(&[], 0).unwrap();
         assert_eq!((den, est), (vec![1.0], vec![0.0]));
+        // A pure gain with one input and one output: num = D.
+        let gain = Matrix::from_row_major(1, 1, vec![2.5]).unwrap();
+        let empty = |r, c| Matrix::from_row_major(r, c, vec![]).unwrap();
+        let ss0 = StateSpace::new(empty(0, 0), empty(0, 1), empty(1, 0), gain).unwrap();
+        let r0 = transfer_function(&ss0).unwrap();
+        assert_eq!((r0.num, r0.den), (vec![2.5], vec![1.0]));
         let z = |r, c| Matrix::from_row_major(r, c, vec![0.0; r * c]).unwrap();
         let mut a = z(2, 2);
         a.set(0, 1, 1.0);
