@@ -1,4 +1,8 @@
-"""Writes the demo notebooks (stored without outputs). Run: python notebooks-demo/make_notebooks.py"""
+"""Writes the demo notebooks (stored without outputs). Run: python notebooks-demo/make_notebooks.py
+
+Every scenario and every number in them is invented for the demos; no model describes real
+equipment. Each notebook draws its figures inline (the test suite counts them).
+"""
 
 from pathlib import Path
 
@@ -7,42 +11,89 @@ from nbformat.v4 import new_code_cell, new_markdown_cell, new_notebook
 
 HERE = Path(__file__).parent
 
+SETUP = (
+    "%matplotlib inline\n"
+    "import numpy as np\n"
+    "import matplotlib.pyplot as plt\n"
+    "import statewright as sw\n"
+    "from statewright import plotting\n"
+    "plotting.use_style()   # labelled axes, legends, line styles that survive black-and-white print\n"
+)
+
+
+def _notebook(cells: list) -> nbformat.NotebookNode:
+    nb = new_notebook(cells=cells)
+    nb.metadata["kernelspec"] = {
+        "name": "python3",
+        "display_name": "Python 3",
+        "language": "python",
+    }
+    nb.metadata["language_info"] = {"name": "python"}
+    return nb
+
 
 def canonical_forms() -> nbformat.NotebookNode:
     cells = [
         new_markdown_cell(
             "# From a differential equation to every canonical form\n\n"
-            "*Scenario (invented data):* the lift axis of a small scissor platform. A fit of its "
-            "valve-command-to-height response gave the differential equation\n\n"
-            "$$0.5\\,\\dddot y + 3\\,\\ddot y + 5.5\\,\\dot y + 3\\,y = 2\\,\\dot u + 6\\,u$$\n\n"
-            "so $G(s) = \\dfrac{2s + 6}{0.5 s^3 + 3 s^2 + 5.5 s + 3}$. We realize it in every "
-            "canonical form, check the hand derivation in exact arithmetic, and simulate."
+            "*Scenario (invented data):* the lift axis of a hydraulic scissor platform. A fit of its "
+            "valve-command-to-height step response (valve command $u$ in V, platform height $y$ in cm) "
+            "gave the differential equation\n\n"
+            "$$0.4\\,\\dddot y + 2.2\\,\\ddot y + 5.3\\,\\dot y + 4.1\\,y = 1.8\\,\\dot u + 7.4\\,u$$\n\n"
+            "so $G(s) = \\dfrac{1.8 s + 7.4}{0.4 s^3 + 2.2 s^2 + 5.3 s + 4.1}$. Before realizing it we "
+            "check that the fit is minimal (a canonical form of a transfer function whose numerator and "
+            "denominator share a root carries a state too many); then we realize it in every canonical "
+            "form, check the hand derivation in exact arithmetic, and look at its poles, zero, step and "
+            "frequency response."
         ),
         new_code_cell(
-            "import numpy as np\n"
-            "import matplotlib\n"
-            "matplotlib.use('Agg')\n"
-            "import matplotlib.pyplot as plt\n"
-            "from scipy import signal\n"
-            "import sympy as sp\n"
-            "import statewright as sw\n\n"
-            "num, den = [2, 6], [0.5, 3, 5.5, 3]"
+            SETUP + "from scipy import signal\nimport sympy as sp\n\nnum, den = [1.8, 7.4], [0.4, 2.2, 5.3, 4.1]"
         ),
         new_markdown_cell(
-            "Phase variables $x_1 = z, x_2 = \\dot z, x_3 = \\ddot z$ of $a(p) z = u$, "
-            "$y = c(p) z$: the controllable canonical form. In a notebook it shows as typeset matrices."
+            "**Is the fit minimal?** Exactly: the greatest common divisor of numerator and denominator, "
+            "over the rationals, with the coefficients as written down. Numerically: the staircases of the "
+            "controllable canonical form (orthogonal transformations, a singular-value decision per step)."
         ),
-        new_code_cell("r = sw.realize(num, den, 'controllable_canonical')\nr"),
+        new_code_cell(
+            "s = sp.symbols('s')\n"
+            "num_q = sp.Poly([sp.Rational(x) for x in ['1.8', '7.4']], s)\n"
+            "den_q = sp.Poly([sp.Rational(x) for x in ['0.4', '2.2', '5.3', '4.1']], s)\n"
+            "print('gcd of numerator and denominator:', sp.gcd(num_q, den_q).as_expr())\n"
+            "r = sw.realize(num, den, 'controllable_canonical')\n"
+            "print('controllable:', r.is_controllable(), ' observable:', r.is_observable(),\n"
+            "      ' minimal order:', sw.minimal_realization(*r).n_states, 'of', r.n_states)\n"
+            "assert sp.gcd(num_q, den_q).degree() == 0 and sw.minimal_realization(*r).n_states == 3"
+        ),
+        new_markdown_cell(
+            "Had the fit come back with a fourth pole-zero pair at $s = -1.5$ (a mode the test never "
+            "excited), every canonical form would have four states and one of them would be invisible at "
+            "the output. The controllable canonical form is controllable by construction, so the "
+            "observability staircase is the one that finds it:"
+        ),
+        new_code_cell(
+            "r4 = sw.realize(np.polymul(num, [1, 1.5]), np.polymul(den, [1, 1.5]))\n"
+            "m4 = sw.minimal_realization(*r4)\n"
+            "print(r4.n_states, 'states; controllable:', r4.is_controllable(), ' observable:', r4.is_observable(),\n"
+            "      ' minimal order:', m4.n_states)\n"
+            "print('singular values of the observability steps:',\n"
+            "      [float(v.max()) for v in m4.info['observability_singular_values']])\n"
+            "assert m4.n_states == 3 and not r4.is_observable()"
+        ),
+        new_markdown_cell(
+            "Our fit is minimal. Phase variables $x_1 = z, x_2 = \\dot z, x_3 = \\ddot z$ of $a(p) z = u$, "
+            "$y = c(p) z$ give the controllable canonical form. In a notebook it shows as typeset "
+            "matrices, under a caption of its size and arithmetic (and its time base, where the model records one)."
+        ),
+        new_code_cell("r"),
         new_markdown_cell(
             "The same model in exact arithmetic, with the coefficients as they were written "
             "down, and the hand derivation checked by sympy: $C(sI-A)^{-1}B + D$ must equal $G(s)$."
         ),
         new_code_cell(
-            "re = sw.realize(['2', '6'], ['0.5', '3', '5.5', '3'], 'controllable_canonical', exact=True)\n"
-            "s = sp.symbols('s')\n"
+            "re = sw.realize(['1.8', '7.4'], ['0.4', '2.2', '5.3', '4.1'], 'controllable_canonical', exact=True)\n"
             "A, B, C, D = (sp.Matrix(m.tolist()) for m in re)\n"
             "G_state = sp.simplify((C * (s * sp.eye(3) - A).inv() * B)[0, 0] + D[0, 0])\n"
-            "G_given = (2 * s + 6) / (sp.Rational(1, 2) * s**3 + 3 * s**2 + sp.Rational(11, 2) * s + 3)\n"
+            "G_given = num_q.as_expr() / den_q.as_expr()\n"
             "assert sp.simplify(G_state - G_given) == 0\n"
             "re"
         ),
@@ -53,7 +104,8 @@ def canonical_forms() -> nbformat.NotebookNode:
             "realizations = {f: sw.realize(num, den, f) for f in forms}\n"
             "for f, rf in realizations.items():\n"
             "    n_rec, d_rec = rf.transfer_function()\n"
-            "    print(f'{f:24s} poles {np.round(rf.poles().real, 6)}  num {np.round(n_rec[0, 0], 12)}  den {d_rec}')"
+            "    print(f'{f:24s} poles {np.round(rf.poles(), 4)}  num {np.round(n_rec[0, 0], 12)}  den {d_rec}')\n"
+            "    assert np.allclose(n_rec[0, 0][-2:], np.array(num) / den[0], rtol=1e-12)"
         ),
         new_markdown_cell(
             "The proper case: a biproper lead network $K(s) = (3s + 12)/(s + 24)$ has a direct "
@@ -62,28 +114,40 @@ def canonical_forms() -> nbformat.NotebookNode:
         new_code_cell("sw.realize([3, 12], [1, 24], 'controller')"),
         new_markdown_cell(
             "Simulation with SciPy from each realization: the step responses coincide (they are "
-            "the same input-output model), and the pole map shows the three real modes."
+            "the same input-output model)."
         ),
         new_code_cell(
             "t = np.linspace(0, 6, 400)\n"
-            "fig, (ax1, ax2) = plt.subplots(1, 2, figsize=(10, 3.5))\n"
+            "fig, ax = plt.subplots(figsize=(6.4, 3.8))\n"
             "for f, rf in realizations.items():\n"
             "    _, y = signal.step(signal.StateSpace(*rf), T=t)\n"
-            "    ax1.plot(t, y, label=f, alpha=0.7)\n"
-            "ax1.set_xlabel('time [s]'); ax1.set_ylabel('platform height [m]'); ax1.legend(fontsize=7)\n"
-            "ax1.set_title('step response, every form')\n"
-            "p = realizations['modal'].poles()\n"
-            "ax2.plot(p.real, p.imag, 'x', ms=10)\n"
-            "ax2.axvline(0, color='k', lw=0.5); ax2.axhline(0, color='k', lw=0.5)\n"
-            "ax2.set_xlabel('real'); ax2.set_ylabel('imaginary'); ax2.set_title('poles')\n"
-            "fig.tight_layout()\n"
+            "    ax.plot(t, y, label=f)\n"
+            "ax.set_xlabel('time [s]'); ax.set_ylabel('platform height [cm] per V of valve command')\n"
+            "ax.set_title('unit step response, every form'); ax.legend(ncol=2)\n"
             "ys = [signal.step(signal.StateSpace(*rf), T=t)[1] for rf in realizations.values()]\n"
             "assert max(np.max(np.abs(y - ys[0])) for y in ys) < 1e-9"
         ),
+        new_markdown_cell(
+            "Poles and the zero: a real pole at $-1.33$, a complex pair at $-2.08 \\pm 1.83j$ "
+            "(damping ratio 0.75), the zero at $-7.4/1.8 = -4.11$, well away from every pole."
+        ),
+        new_code_cell(
+            "fig = plotting.pole_zero_map(r, title='lift axis: poles and zero')\n"
+            "assert np.isclose(np.roots(num)[0], -7.4 / 1.8)"
+        ),
+        new_markdown_cell(
+            "The frequency response of two of the forms, computed from their matrices (one complex solve "
+            "per frequency), drawn over each other: they are the same curve."
+        ),
+        new_code_cell(
+            "fig = plotting.frequency_response_plot(realizations['controllable_canonical'], realizations['modal'],\n"
+            "                                      labels=['controllable canonical', 'modal'], gain_unit='cm/V')\n"
+            "w = np.logspace(-1, 2, 50)\n"
+            "diff = realizations['controllable_canonical'].evaluate(1j * w) - realizations['modal'].evaluate(1j * w)\n"
+            "assert np.max(np.abs(diff)) < 1e-12"
+        ),
     ]
-    nb = new_notebook(cells=cells)
-    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3", "language": "python"}
-    return nb
+    return _notebook(cells)
 
 
 def hidden_modes() -> nbformat.NotebookNode:
@@ -97,32 +161,35 @@ def hidden_modes() -> nbformat.NotebookNode:
             "looking at the matrices: the model arrives in physical coordinates that mix all states."
         ),
         new_code_cell(
-            "import numpy as np\n"
-            "import matplotlib\n"
-            "matplotlib.use('Agg')\n"
-            "import matplotlib.pyplot as plt\n"
-            "import statewright as sw\n\n"
+            SETUP + "\n"
             "rng = np.random.default_rng(12)\n"
             "# Decoupled construction (hidden below): 9 controllable+observable states, 1 controllable but\n"
             "# unobservable (drive thermal state), 2 uncontrollable but observable (idler resonance).\n"
             "blocks = [np.array([[-0.2, 8.0], [-8.0, -0.2]]), np.array([[-1.0, 3.0], [-3.0, -1.0]]),\n"
-            "          np.array([[-5.0]]), np.array([[-0.5, 1.5], [-1.5, -0.5]]), np.array([[-12.0, 2.0], [-2.0, -12.0]])]\n"
+            "          np.array([[-5.0]]), np.array([[-0.5, 1.5], [-1.5, -0.5]]),\n"
+            "          np.array([[-12.0, 2.0], [-2.0, -12.0]])]\n"
             "co = np.zeros((9, 9)); k = 0\n"
             "for blk in blocks:\n"
-            "    s = blk.shape[0]; co[k:k+s, k:k+s] = blk; k += s\n"
+            "    n_blk = blk.shape[0]; co[k:k+n_blk, k:k+n_blk] = blk; k += n_blk\n"
             "a0 = np.zeros((12, 12)); a0[:9, :9] = co\n"
             "a0[9, 9] = -0.05                       # drive thermal state: controllable, unobservable\n"
             "a0[10:, 10:] = [[-0.02, 25.0], [-25.0, -0.02]]   # idler resonance: uncontrollable\n"
             "a0[9, :9] = 0.3 * rng.standard_normal(9)          # heated by the drive currents\n"
             "a0[:9, 10:] = 0.2 * rng.standard_normal((9, 2))   # the resonance shakes the web (observable)\n"
             "b0 = np.zeros((12, 2)); b0[:10] = rng.standard_normal((10, 2))\n"
-            "c0 = np.zeros((2, 12)); c0[:, :9] = rng.standard_normal((2, 9)); c0[:, 10:] = rng.standard_normal((2, 2))\n"
-            "# Physical coordinates: an invertible mixing of all states.\n"
+            "c0 = np.zeros((2, 12)); c0[:, :9] = rng.standard_normal((2, 9))\n"
+            "c0[:, 10:] = rng.standard_normal((2, 2))\n"
+            "# Physical coordinates: an invertible mixing of all states. Time in seconds.\n"
             "t_phys = np.linalg.qr(rng.standard_normal((12, 12)))[0] @ np.diag(np.linspace(1, 3, 12))\n"
             "a = np.linalg.solve(t_phys, a0 @ t_phys); b = np.linalg.solve(t_phys, b0); c = c0 @ t_phys\n"
             "d = np.zeros((2, 2))\n"
             "np.count_nonzero(np.abs(a) < 1e-12), a.shape   # no visible structure"
         ),
+        new_markdown_cell(
+            "The model as it arrives: twelve states, dense. Its display typesets all twelve columns "
+            "(an array with explicit columns, not the ten-column default matrix environment)."
+        ),
+        new_code_cell("sw.Realization(a, b, c, d)"),
         new_markdown_cell(
             "The controllability staircase (orthogonal transformations, rank decided by singular values at "
             "each step) finds the reachable dimension; the margins show how clear each decision was."
@@ -135,7 +202,7 @@ def hidden_modes() -> nbformat.NotebookNode:
         ),
         new_markdown_cell(
             "Read the margins: every step keeps singular values of order 0.1 to 5, and then one step "
-            "keeps a value of order 1e-12, eleven decades lower, barely above the default tolerance "
+            "keeps a value of a few times 1e-12, eleven decades lower, barely above the default tolerance "
             "(which only promises to find zeros that are exactly zero in the data). That value is the "
             "idler resonance's coupling blurred by the rounding of the change to physical coordinates. "
             "A tolerance inside the gap, here 1e-9 relative to the size of A, decides it:"
@@ -149,13 +216,17 @@ def hidden_modes() -> nbformat.NotebookNode:
         ),
         new_code_cell(
             "fig, (ax1, ax2) = plt.subplots(1, 2, figsize=(10, 4))\n"
-            "ax1.spy(np.abs(s.a) > 1e-12 * np.abs(s.a).max(), markersize=6)\n"
-            "ax1.axhline(s.rank - 0.5, color='r'); ax1.axvline(s.rank - 0.5, color='r')\n"
-            "ax1.set_title('staircase form: Q^T A Q (red: controllable part)')\n"
+            "ax1.spy(np.abs(s.a) > 1e-12 * np.abs(s.a).max(), markersize=6, color='#1f3b73')\n"
+            "ax1.axhline(s.rank - 0.5, color='#c8553d'); ax1.axvline(s.rank - 0.5, color='#c8553d')\n"
+            "ax1.set_title('nonzero pattern of $Q^T A Q$')\n"
+            "ax1.set_xlabel('state (column)'); ax1.set_ylabel('state (row)')\n"
+            "ax1.grid(False)\n"
             "for i, sv in enumerate(s.singular_values):\n"
-            "    ax2.semilogy([i + 1] * len(sv), np.maximum(sv, 1e-18), 'o')\n"
-            "ax2.axhline(s.tol, color='r', ls='--', label='tol')\n"
-            "ax2.set_xlabel('staircase step'); ax2.set_ylabel('singular values of the step block'); ax2.legend()\n"
+            "    ax2.semilogy([i + 1] * len(sv), np.maximum(sv, 1e-18), 'o', color='#1f3b73',\n"
+            "                 label='singular values of the step block' if i == 0 else None)\n"
+            "ax2.axhline(s.tol, color='#c8553d', ls='--', label=f'tol = {s.tol:.1e}')\n"
+            "ax2.set_xlabel('staircase step'); ax2.set_ylabel('singular value [1/s]'); ax2.legend()\n"
+            "ax2.set_title('the decision of each step')\n"
             "fig.tight_layout()"
         ),
         new_markdown_cell(
@@ -168,29 +239,54 @@ def hidden_modes() -> nbformat.NotebookNode:
             "assert k.sizes == (9, 1, 2, 0)\n"
             "m = sw.minimal_realization(a, b, c, d, tol=tol)\n"
             "w = 1j * np.logspace(-2, 2, 200)\n"
-            "full = sw.Realization(a, b, c, d).evaluate(w)\n"
-            "small = m.evaluate(w)\n"
-            "print('states', m.n_states, ' max difference of the frequency responses', np.max(np.abs(full - small)))\n"
-            "assert m.n_states == 9 and np.max(np.abs(full - small)) < 1e-9\n"
-            "print('poles of the hidden parts:', np.round(np.linalg.eigvals(k.realization.a[9:, 9:]), 4))"
+            "full = sw.Realization(a, b, c, d)\n"
+            "print('states', m.n_states, ' max difference of the frequency responses',\n"
+            "      np.max(np.abs(full.evaluate(w) - m.evaluate(w))))\n"
+            "assert m.n_states == 9 and np.max(np.abs(full.evaluate(w) - m.evaluate(w))) < 1e-9\n"
+            "print('poles of the hidden parts:', np.round(np.linalg.eigvals(k.realization.a[9:, 9:]), 4))\n"
+            "k"
         ),
         new_markdown_cell(
-            "Why not the rank of the controllability matrix? Its singular values spread like powers of "
-            "the eigenvalue magnitudes (here 0.02 to 25): below they cover sixteen decades with no clean "
-            "gap. numpy's default threshold happens to land on 10 for this model, but with faster or "
-            "slower modes it calls a controllable model uncontrollable (the test suite shows such a "
-            "case); the staircase's margins stay readable."
+            "The poles of the full model against those of the minimal one: the three that are gone are "
+            "the hidden ones, the drive's slow thermal pole at $-0.05$ and the idler's lightly damped pair "
+            "at $-0.02 \\pm 25j$. The frequency responses (singular values, two inputs and two outputs) "
+            "coincide: the hidden modes never reach the outputs from the inputs."
         ),
         new_code_cell(
-            "kmat = sw.controllability_matrix(a, b)\n"
-            "sv = np.linalg.svd(kmat, compute_uv=False)\n"
-            "print('singular values of [B, AB, ..., A^11 B]:', np.array2string(sv, precision=2))\n"
-            "print('numpy rank of it:', np.linalg.matrix_rank(kmat), ' (the staircase says', s.rank, ')')"
+            "fig = plotting.pole_zero_map(full, m, labels=['full (12 states)', 'minimal (9 states)'], zeros=None)\n"
+            "fig = plotting.frequency_response_plot(full, m, labels=['full (12 states)', 'minimal (9 states)'],\n"
+            "                                      gain_unit='N/A')"
+        ),
+        new_markdown_cell(
+            "**Why not the rank of the controllability matrix?** Its singular values spread like powers of "
+            "the eigenvalue magnitudes, so the answer depends on the unit of time. The same model with time "
+            "in minutes ($\\mathrm{d}x/\\mathrm{d}t_{\\min} = 60\\,(A x + B u)$: every rate is 60 times "
+            "larger, nothing else changes) has the same controllable subspace. The staircase, with the "
+            "same relative tolerance, still says 10; numpy's rank of $[B, AB, \\ldots, A^{11}B]$ drops to "
+            "7 in minutes (and to 5 in hours), calling three controllable states uncontrollable."
+        ),
+        new_code_cell(
+            "rows = []\n"
+            "for unit, scale in [('s', 1.0), ('min', 60.0), ('h', 3600.0)]:\n"
+            "    a_u, b_u = scale * a, scale * b\n"
+            "    s_u = sw.controllability_staircase(a_u, b_u, c, tol=1e-9 * np.linalg.norm(a_u))\n"
+            "    kmat = sw.controllability_matrix(a_u, b_u)\n"
+            "    sv = np.linalg.svd(kmat, compute_uv=False)\n"
+            "    rows.append((unit, s_u.rank, np.linalg.matrix_rank(kmat), sv))\n"
+            "    print(f'time in {unit:3s}: staircase rank {s_u.rank:2d}, numpy rank of the controllability matrix '\n"
+            "          f'{np.linalg.matrix_rank(kmat):2d}, its singular values span {sv[0] / sv[-1]:.1e}')\n"
+            "assert [r[1] for r in rows] == [10, 10, 10] and rows[1][2] < 10\n"
+            "fig, ax = plt.subplots(figsize=(6.4, 4))\n"
+            "for (unit, _, rank, sv), marker in zip(rows, 'os^'):\n"
+            "    rel = sv / sv[0]\n"
+            "    ax.semilogy(np.arange(1, 13), rel, marker=marker, label=f'time in {unit} (numpy rank {rank})')\n"
+            "ax.axhline(12 * np.finfo(float).eps, color='black', ls='--', lw=1, label='numpy threshold 12 eps')\n"
+            "ax.axvline(10.5, color='0.4', ls=':', lw=1, label='true controllable dimension 10')\n"
+            "ax.set_xlabel('index i'); ax.set_ylabel('singular value / largest [1]')\n"
+            "ax.set_title('controllability matrix: the rank depends on the time unit'); ax.legend(fontsize=8)"
         ),
     ]
-    nb = new_notebook(cells=cells)
-    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3", "language": "python"}
-    return nb
+    return _notebook(cells)
 
 
 def fleet() -> nbformat.NotebookNode:
@@ -199,34 +295,38 @@ def fleet() -> nbformat.NotebookNode:
             "# A fleet of identified pump models, in one batch\n\n"
             "*Scenario (invented data):* 2,000 circulation pumps of a district-heating network, each "
             "identified from a speed-command step test as a 4th-order transfer function from motor "
-            "speed command to differential pressure. Some fits are over-parameterised: a pole and a "
-            "zero nearly coincide (a mode the test never excited). We realize all models in one "
-            "call, recover their transfer functions, find the redundant modes and keep minimal models."
+            "speed command to differential pressure. For about a third of the units the fit put a zero "
+            "close to one of the poles: a mode the test hardly excited. How close varies over ten "
+            "decades, from a zero that is the pole to eleven digits to one that is 10 % away. Which of "
+            "these modes should a fleet-wide reduction remove? We realize all models in one call, "
+            "recover their transfer functions, and look at the number each decision rests on."
         ),
         new_code_cell(
-            "import numpy as np\n"
-            "import matplotlib\n"
-            "matplotlib.use('Agg')\n"
-            "import matplotlib.pyplot as plt\n"
-            "from scipy import signal\n"
-            "import statewright as sw\n\n"
+            SETUP + "from scipy import signal\n\n"
             "rng = np.random.default_rng(2024)\n"
             "count = 2000\n"
             "# Invented identification results: two dominant real poles (pump and pipe), a lightly\n"
-            "# damped pair (water hammer), and for a quarter of the units a zero that cancels one pole.\n"
-            "dens, nums, redundant = [], [], []\n"
+            "# damped pair (water hammer), and for about 30 % of the units a zero near the pipe pole,\n"
+            "# at a relative distance between 1e-11 and 1e-1 (log-uniform).\n"
+            "dens, nums, offset = [], [], []\n"
             "for i in range(count):\n"
             "    p1, p2 = -rng.uniform(0.5, 2.0), -rng.uniform(4.0, 9.0)\n"
             "    wn, zeta = rng.uniform(15, 30), rng.uniform(0.05, 0.2)\n"
             "    den = np.polymul(np.polymul([1, -p1], [1, -p2]), [1, 2 * zeta * wn, wn ** 2])\n"
-            "    cancels = rng.random() < 0.25\n"
-            "    z = p2 if cancels else -rng.uniform(20, 40)\n"
+            "    if rng.random() < 0.3:\n"
+            "        delta = rng.choice([-1, 1]) * 10 ** rng.uniform(-11, -1)\n"
+            "        z = p2 * (1 + delta)\n"
+            "    else:\n"
+            "        delta, z = np.nan, -rng.uniform(20, 40)\n"
             "    num = rng.uniform(50, 80) * np.polymul([1, -z], [1, 30.0])\n"
-            "    dens.append(den); nums.append(num); redundant.append(cancels)\n"
-            "den = np.array(dens); num = np.array(nums); redundant = np.array(redundant)\n"
-            "num.shape, den.shape, redundant.sum()"
+            "    dens.append(den); nums.append(num); offset.append(delta)\n"
+            "den = np.array(dens); num = np.array(nums); offset = np.array(offset)\n"
+            "near = ~np.isnan(offset)\n"
+            "num.shape, den.shape, int(near.sum())"
         ),
-        new_markdown_cell("One call realizes the whole fleet (all cores, GIL released); one call recovers the transfer functions."),
+        new_markdown_cell(
+            "One call realizes the whole fleet (all cores, GIL released); one call recovers the transfer functions."
+        ),
         new_code_cell(
             "import time\n"
             "t0 = time.perf_counter()\n"
@@ -242,138 +342,247 @@ def fleet() -> nbformat.NotebookNode:
             "assert np.allclose(num2[:, 0, 0, 2:], num / scale, rtol=1e-12, atol=0)"
         ),
         new_markdown_cell(
-            "Structure of each model: a cancelled pole shows up as a mode the output cannot see "
-            "(the realization is controllable by construction). The singular values behind each "
-            "decision are kept, so the borderline cases can be inspected."
+            "**The decision statistic.** The controllable canonical form is controllable by construction; "
+            "a near-cancelled pole is a mode the output hardly sees. The minimal realization decides it on "
+            "the observability staircase (a power-of-two balanced copy, orthogonal steps): each step keeps "
+            "the directions whose singular value exceeds `tol`. The smallest of the largest singular values "
+            "of the steps is the number the decision rested on (from the second step on, the blocks decided "
+            "are parts of A, so it has the unit 1/s). With the default `tol` (about 3e-13, which "
+            "only promises to find exact zeros) nothing is removed:"
         ),
         new_code_cell(
-            "minimal_orders = np.array([sw.minimal_realization(A[i], B[i], C[i], D[i], tol=1e-8).n_states\n"
-            "                           for i in range(count)])\n"
-            "print('minimal orders found:', dict(zip(*np.unique(minimal_orders, return_counts=True))))\n"
-            "assert np.array_equal(minimal_orders == 3, redundant)\n"
-            "fig, (ax1, ax2) = plt.subplots(1, 2, figsize=(10, 4))\n"
-            "ax1.hist(minimal_orders, bins=[2.5, 3.5, 4.5], rwidth=0.6)\n"
-            "ax1.set_xticks([3, 4]); ax1.set_xlabel('minimal order'); ax1.set_ylabel('pumps')\n"
-            "ax1.set_title('redundant modes found in the fleet')\n"
-            "poles = np.concatenate([np.roots(d) for d in den[:300]])\n"
-            "ax2.plot(poles.real, poles.imag, '.', ms=3, alpha=0.5)\n"
-            "ax2.set_xlabel('real'); ax2.set_ylabel('imaginary'); ax2.set_title('poles of 300 pumps')\n"
-            "fig.tight_layout()"
+            "def statistic(i, tol=None):\n"
+            "    m = sw.minimal_realization(A[i], B[i], C[i], D[i], tol=tol)\n"
+            "    steps = m.info['observability_singular_values']\n"
+            "    return m, min(float(v.max()) if v.size else 0.0 for v in steps)\n"
+            "results = [statistic(i) for i in range(count)]\n"
+            "stat = np.array([s for _, s in results])\n"
+            "default_orders = np.array([m.n_states for m, _ in results])\n"
+            "print('default tol', results[0][0].info['tol'][1], '-> minimal orders',\n"
+            "      dict(zip(*np.unique(default_orders, return_counts=True))))\n"
+            "print('statistic of the units without a near zero: from', stat[~near].min().round(3),\n"
+            "      'to', stat[~near].max().round(3))\n"
+            "print('statistic of the units with a near zero:    from', f'{stat[near].min():.1e}',\n"
+            "      'to', f'{stat[near].max():.1e}')"
         ),
-        new_markdown_cell("A reduced model responds exactly like the full one: step responses simulated with SciPy."),
+        new_markdown_cell(
+            "The fleet's distribution of that statistic, grouped by how close the zero really is. The "
+            "engineering choice `tol = 1e-6` removes every mode whose statistic lies below the line. Units "
+            "within a factor of 30 of the line are the hard ones: a different test, a different "
+            "identification run or a tolerance 30 times larger or smaller would flip them."
+        ),
         new_code_cell(
-            "i = int(np.flatnonzero(redundant)[0])\n"
-            "full = sw.Realization(A[i], B[i], C[i], D[i])\n"
-            "small = sw.minimal_realization(*full, tol=1e-8)\n"
+            "TOL = 1e-6\n"
+            "group = np.where(~near, 'no zero near a pole',\n"
+            "                 np.where(np.abs(np.nan_to_num(offset)) < 1e-6, 'zero within 1e-6 (relative)',\n"
+            "                          'zero 1e-6 to 1e-1 from a pole'))\n"
+            "fig = plotting.fleet_distribution_plot(stat, threshold=TOL, groups=group,\n"
+            "                                       quantity='smallest singular value of an observability step',\n"
+            "                                       unit='1/s', bins=50)\n"
+            "hard = (stat > TOL / 30) & (stat < TOL * 30)\n"
+            "print('hard to decide (within a factor 30 of tol):', int(hard.sum()), 'units')"
+        ),
+        new_markdown_cell(
+            "What a decision costs. For each removed mode, the largest change of the pump's frequency "
+            "response that the removal makes, relative to the pump's peak gain; and, for comparison, the "
+            "smallest Hankel singular value relative to the largest (the share of the input-output energy "
+            "that mode carries). The response change follows the statistic over ten decades, so `tol` "
+            "is a statement about acceptable model error. The Hankel singular values stop resolving the "
+            "mode below about 1e-8 relative: they are square roots of eigenvalues of a product of "
+            "Gramians, accurate to about the square root of the machine epsilon, so they cannot make the "
+            "decisions near 1e-11 that the staircase makes."
+        ),
+        new_code_cell(
+            "w = 1j * np.logspace(-1, 2.5, 300)\n"
+            "removed, change, energy = [], [], []\n"
+            "for i in np.flatnonzero(near):\n"
+            "    full = sw.Realization(A[i], B[i], C[i], D[i])\n"
+            "    small = sw.minimal_realization(*full, tol=TOL)\n"
+            "    hsv = sw.hankel_singular_values(A[i], B[i], C[i])\n"
+            "    energy.append(hsv[-1] / hsv[0])\n"
+            "    if small.n_states < full.n_states:\n"
+            "        g_full = full.evaluate(w)\n"
+            "        change.append(np.max(np.abs(g_full - small.evaluate(w))) / np.max(np.abs(g_full)))\n"
+            "        removed.append(i)\n"
+            "removed = np.array(removed); change = np.array(change); energy = np.array(energy)\n"
+            "print(len(removed), 'modes removed with tol', TOL, '; largest relative response change',\n"
+            "      f'{change.max():.1e}')\n"
+            "assert change.max() < 1e-4\n"
+            "fig, ax = plt.subplots(figsize=(6.4, 4))\n"
+            "ax.loglog(stat[removed], np.maximum(change, 1e-17), 'o', ms=4, mfc='none',\n"
+            "          label='response change of the removal (relative)')\n"
+            "resolved = energy > 0\n"
+            "ax.loglog(stat[near][resolved], energy[resolved], '+', ms=5,\n"
+            "          label='smallest / largest Hankel singular value')\n"
+            "print(int((~resolved).sum()), 'near-cancelled modes have a smallest Hankel singular value of exactly 0 '\n"
+            "      '(not drawn): below the resolution of the Gramians')\n"
+            "ax.axvline(TOL, color='black', ls='--', lw=1, label=f'tol = {TOL:g}')\n"
+            "ax.set_xlabel('decision statistic [1/s]'); ax.set_ylabel('relative size [1]')\n"
+            "ax.set_title('what the statistic predicts'); ax.legend(fontsize=8)"
+        ),
+        new_markdown_cell(
+            "The hardest decision that went one way and the hardest that went the other: the two units "
+            "nearest the tolerance on either side. The removed one loses a mode whose zero sits within "
+            "about 1e-7 of its pole; its step response and frequency response do not change visibly."
+        ),
+        new_code_cell(
+            "below = np.flatnonzero(near & (stat < TOL)); above = np.flatnonzero(near & (stat >= TOL))\n"
+            "i_rem = below[np.argmax(stat[below])]; i_kept = above[np.argmin(stat[above])]\n"
+            "for i in (i_rem, i_kept):\n"
+            "    print(f'pump {i}: statistic {stat[i]:.2e}, zero offset {offset[i]:+.1e} (relative),',\n"
+            "          'minimal order', sw.minimal_realization(A[i], B[i], C[i], D[i], tol=TOL).n_states)\n"
+            "full = sw.Realization(A[i_rem], B[i_rem], C[i_rem], D[i_rem])\n"
+            "small = sw.minimal_realization(*full, tol=TOL)\n"
             "t = np.linspace(0, 4, 400)\n"
             "_, y_full = signal.step(full.to_scipy(), T=t)\n"
             "_, y_small = signal.step(small.to_scipy(), T=t)\n"
-            "plt.figure(figsize=(6, 3.5))\n"
-            "plt.plot(t, y_full, label=f'full ({full.n_states} states)')\n"
-            "plt.plot(t, y_small, '--', label=f'minimal ({small.n_states} states)')\n"
-            "plt.xlabel('time [s]'); plt.ylabel('pressure [kPa]'); plt.legend(); plt.title(f'pump {i}')\n"
-            "print('max difference', np.max(np.abs(y_full - y_small)))\n"
-            "assert np.max(np.abs(y_full - y_small)) < 1e-6 * np.max(np.abs(y_full))"
+            "fig, ax = plt.subplots(figsize=(6.4, 3.6))\n"
+            "ax.plot(t, y_full, label=f'full ({full.n_states} states)')\n"
+            "ax.plot(t, y_small, label=f'minimal ({small.n_states} states)')\n"
+            "ax.set_xlabel('time [s]'); ax.set_ylabel('differential pressure [kPa] per unit command')\n"
+            "ax.set_title(f'pump {i_rem}: unit step response'); ax.legend()\n"
+            "print('max difference of the step responses', np.max(np.abs(y_full - y_small)))\n"
+            "assert np.max(np.abs(y_full - y_small)) < 1e-4 * np.max(np.abs(y_full))\n"
+            "fig = plotting.frequency_response_plot(full, small, labels=['full', 'minimal'], gain_unit='kPa')"
         ),
         new_markdown_cell("The minimal model of that pump, as typeset matrices:"),
         new_code_cell("small"),
     ]
-    nb = new_notebook(cells=cells)
-    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3", "language": "python"}
-    return nb
+    return _notebook(cells)
 
 
 def identified_impulse_response() -> nbformat.NotebookNode:
     cells = [
         new_markdown_cell(
             "# From a noisy multi-input impulse response to a balanced, truncated model\n\n"
-            "*Scenario (invented data):* a two-zone drying oven with two heater inputs and two "
-            "temperature outputs, sampled every 5 s. A pulse test gave 60 samples of its impulse "
+            "*Scenario (invented data):* a two-zone drying oven with two heater inputs (kW) and two "
+            "temperature outputs (K), sampled every 5 s. A pulse test gave 60 samples of its impulse "
             "response (Markov parameters), with sensor noise. We realize a model from the samples "
-            "(Ho–Kalman: SVD of the block Hankel matrix), pick the order at the gap of the Hankel "
-            "singular values, balance it, truncate it, and compare the a-priori error bound with "
-            "the actual error."
+            "(Ho–Kalman: SVD of the block Hankel matrix of the data), pick the order at the gap of that "
+            "matrix's singular values, compute the identified model's own Hankel singular values, "
+            "balance it, truncate it, and compare the a-priori error bound with the actual error."
         ),
         new_code_cell(
-            "import numpy as np\n"
-            "import matplotlib\n"
-            "matplotlib.use('Agg')\n"
-            "import matplotlib.pyplot as plt\n"
-            "import statewright as sw\n\n"
+            SETUP + "\n"
+            "T = 5.0   # sample time [s]\n"
             "rng = np.random.default_rng(5)\n"
             "# The 'true' oven (hidden from the identification): 6 states, discrete time.\n"
             "poles = np.array([0.97, 0.9, 0.75, 0.5, 0.3, 0.1])\n"
-            "t = np.linalg.qr(rng.standard_normal((6, 6)))[0]\n"
-            "a_true = t @ np.diag(poles) @ t.T\n"
+            "q = np.linalg.qr(rng.standard_normal((6, 6)))[0]\n"
+            "a_true = q @ np.diag(poles) @ q.T\n"
             "b_true = rng.standard_normal((6, 2)) * np.array([[1.0], [0.8], [0.5], [0.2], [0.05], [0.01]])\n"
             "c_true = rng.standard_normal((2, 6))\n"
             "d_true = np.zeros((2, 2))\n"
-            "k = 60\n"
-            "markov = np.empty((k, 2, 2)); markov[0] = d_true\n"
-            "power = np.eye(6)\n"
-            "for i in range(1, k):\n"
-            "    markov[i] = c_true @ power @ b_true; power = a_true @ power\n"
-            "noisy = markov + 2e-4 * rng.standard_normal(markov.shape)\n"
-            "noisy[0] = 0.0   # no direct feedthrough, known from the physics"
-        ),
-        new_code_cell(
-            "r_full = sw.realize_markov(noisy, order=None, tol=5e-3)\n"
-            "sv = r_full.info['singular_values']\n"
-            "order = r_full.n_states\n"
-            "plt.figure(figsize=(6, 3.5))\n"
-            "plt.semilogy(np.arange(1, len(sv) + 1), sv, 'o-')\n"
-            "plt.axvline(order + 0.5, color='r', ls='--', label=f'chosen order {order}')\n"
-            "plt.xlabel('index'); plt.ylabel('Hankel singular value'); plt.legend()\n"
-            "plt.title('the gap between signal and noise')\n"
-            "print('order chosen:', order, ' singular values around the gap:', np.round(sv[order - 2:order + 2], 5))"
-        ),
-        new_markdown_cell(
-            "Balance the identified model (equal, diagonal Gramians) and truncate to the states that "
-            "carry most of the input-output energy. The a-priori bound on the truncation error is twice "
-            "the sum of the discarded Hankel singular values."
-        ),
-        new_code_cell(
-            "keep = 4   # the Hankel singular values drop by a factor of 30 after the fourth\n"
-            "r_bal = sw.balanced_realization(*r_full, order=keep, discrete=True)\n"
-            "hsv = r_bal.info['hankel_singular_values']\n"
-            "bound = r_bal.info['error_bound']\n"
-            "w = np.exp(1j * np.linspace(0, np.pi, 2000))\n"
-            "err = np.max(np.linalg.norm(r_full.evaluate(w) - r_bal.evaluate(w), ord=2, axis=(1, 2)))\n"
-            "print('Hankel singular values:', np.round(hsv, 5))\n"
-            "print(f'kept {keep} states: actual error (max over the unit circle) {err:.3e} <= bound {bound:.3e}')\n"
-            "assert err <= bound * (1 + 1e-9)"
-        ),
-        new_code_cell(
-            "steps = np.arange(k)\n"
-            "def impulse(r, n):\n"
-            "    a, b, c, d = (np.asarray(x, dtype=float) for x in r)\n"
+            "def impulse(a, b, c, d, n):\n"
+            "    a, b, c, d = (np.asarray(x, dtype=float) for x in (a, b, c, d))\n"
             "    out = np.empty((n, c.shape[0], b.shape[1])); out[0] = d\n"
             "    p = np.eye(a.shape[0])\n"
             "    for i in range(1, n):\n"
             "        out[i] = c @ p @ b; p = a @ p\n"
             "    return out\n"
+            "k = 60\n"
+            "markov = impulse(a_true, b_true, c_true, d_true, k)\n"
+            "noisy = markov + 2e-4 * rng.standard_normal(markov.shape)\n"
+            "noisy[0] = 0.0   # no direct feedthrough, known from the physics"
+        ),
+        new_markdown_cell(
+            "**Two different sets of singular values.** `realize_markov` decides the order on the singular "
+            "values of the *data's block Hankel matrix* (here 30 x 29 blocks of 2 x 2 noisy samples): "
+            "they are in `info['singular_values']`. They are not the *Hankel singular values of the model*, "
+            "which are the singular values of the model's infinite Hankel operator, "
+            "$\\sqrt{\\lambda_i(W_c W_o)}$ from its Gramians. The data matrix is a finite section of the "
+            "operator, with noise: its singular values are smaller (for this oven the second one by "
+            "a third), and past the order they are the noise floor, not the model."
+        ),
+        new_code_cell(
+            "r_full = sw.realize_markov(noisy, order=None, tol=5e-3)\n"
+            "order = r_full.n_states\n"
+            "data_sv = r_full.info['singular_values']\n"
+            "model_hsv = sw.hankel_singular_values(*r_full[:3], discrete=True)\n"
+            "print('order chosen:', order)\n"
+            "print('singular values of the data Hankel matrix:', np.round(data_sv[:order + 2], 4))\n"
+            "print('Hankel singular values of the model:      ', np.round(model_hsv, 4))\n"
+            "fig, ax = plt.subplots(figsize=(6.4, 4))\n"
+            "ax.semilogy(np.arange(1, 21), data_sv[:20], 'o-', mfc='none',\n"
+            "            label='data Hankel matrix (noisy samples)')\n"
+            "ax.semilogy(np.arange(1, order + 1), model_hsv, 'x--', ms=8, label=f'identified model ({order} states)')\n"
+            "ax.axvline(order + 0.5, color='0.4', ls=':', label=f'chosen order {order}')\n"
+            "ax.axhline(5e-3, color='black', ls='--', lw=1, label='tol = 5e-3')\n"
+            "ax.set_xlabel('index i'); ax.set_ylabel('singular value [K/kW]')\n"
+            "ax.set_title('two sets of singular values'); ax.legend(fontsize=8)"
+        ),
+        new_markdown_cell(
+            "A check of that statement: with noiseless samples over a long horizon (800 steps, the "
+            "slowest mode decayed to $0.97^{800} \\approx 3\\cdot 10^{-11}$) the data matrix is nearly the whole "
+            "operator, and its singular values meet the true model's Hankel singular values."
+        ),
+        new_code_cell(
+            "long = sw.realize_markov(impulse(a_true, b_true, c_true, d_true, 801), order=6)\n"
+            "true_hsv = sw.hankel_singular_values(a_true, b_true, c_true, discrete=True)\n"
+            "print('data Hankel matrix, 800 noiseless samples:', np.round(long.info['singular_values'][:6], 6))\n"
+            "print('true model, from its Gramians:            ', np.round(true_hsv, 6))\n"
+            "assert np.allclose(long.info['singular_values'][:6], true_hsv, rtol=1e-6)\n"
+            "assert not np.allclose(data_sv[:order], model_hsv, rtol=0.05)"
+        ),
+        new_markdown_cell(
+            "Balance the identified model (equal, diagonal Gramians) and truncate it to the states "
+            "that carry most of the input-output energy. The a-priori bound on the truncation error, "
+            "over all frequencies, is twice the sum of the discarded Hankel singular values of the model."
+        ),
+        new_code_cell(
+            "keep = 4   # the model's Hankel singular values drop by a factor of 30 after the fourth\n"
+            "r_bal = sw.balanced_realization(*r_full, order=keep, discrete=True)\n"
+            "bound = r_bal.info['error_bound']\n"
+            "w = np.exp(1j * np.linspace(0, np.pi, 2000))\n"
+            "err = np.max(np.linalg.norm(r_full.evaluate(w) - r_bal.evaluate(w), ord=2, axis=(1, 2)))\n"
+            "print(f'kept {keep} states: actual error (max over the unit circle) {err:.3e} <= bound {bound:.3e}')\n"
+            "assert np.allclose(r_bal.info['hankel_singular_values'], model_hsv, rtol=1e-8)\n"
+            "assert err <= bound * (1 + 1e-9)\n"
+            "fig = plotting.hankel_singular_value_plot(r_bal, gain_unit='K/kW',\n"
+            "                                          title='Hankel singular values of the identified model')"
+        ),
+        new_markdown_cell(
+            "The bound against the actual error for every order the model could be truncated to, with "
+            "the lower bound $\\sigma_{r+1}$ that no model of order $r$ can beat:"
+        ),
+        new_code_cell("fig = plotting.reduction_error_plot(r_full, sample_time=T, gain_unit='K/kW')"),
+        new_markdown_cell(
+            "Frequency responses up to the Nyquist frequency $\\pi/T$ (singular values: two heaters, two "
+            "zones) and impulse responses of the identified and the truncated model against the samples:"
+        ),
+        new_code_cell(
+            "fig = plotting.frequency_response_plot(r_full, r_bal, sample_time=T, gain_unit='K/kW',\n"
+            "                                      labels=[f'identified ({order} states)', f'truncated ({keep})'])\n"
+            "steps = np.arange(k)\n"
             "fig, axes = plt.subplots(2, 2, figsize=(10, 6), sharex=True)\n"
             "for i in range(2):\n"
             "    for j in range(2):\n"
             "        ax = axes[i, j]\n"
-            "        ax.plot(steps * 5, noisy[:, i, j], '.', ms=3, label='measured (noisy)')\n"
-            "        ax.plot(steps * 5, impulse(r_full, k)[:, i, j], label=f'identified ({order} states)')\n"
-            "        ax.plot(steps * 5, impulse(r_bal, k)[:, i, j], '--', label=f'balanced, truncated ({keep})')\n"
-            "        ax.set_title(f'heater {j + 1} -> zone {i + 1}'); ax.set_xlabel('time [s]')\n"
+            "        ax.plot(steps * T, noisy[:, i, j], '.', ms=3, label='measured (noisy)')\n"
+            "        ax.plot(steps * T, impulse(*r_full, k)[:, i, j], label=f'identified ({order} states)')\n"
+            "        ax.plot(steps * T, impulse(*r_bal, k)[:, i, j], label=f'balanced, truncated ({keep})')\n"
+            "        ax.set_title(f'heater {j + 1} -> zone {i + 1}')\n"
+            "        ax.set_ylabel('temperature [K] per kW pulse')\n"
+            "for ax in axes[1]:\n"
+            "    ax.set_xlabel('time [s]')\n"
             "axes[0, 0].legend(fontsize=7)\n"
             "fig.tight_layout()"
         ),
         new_markdown_cell("The truncated model, as typeset matrices:"),
         new_code_cell("r_bal"),
     ]
-    nb = new_notebook(cells=cells)
-    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3", "language": "python"}
-    return nb
+    return _notebook(cells)
+
+
+NOTEBOOKS = {
+    "01_canonical_forms.ipynb": canonical_forms,
+    "02_hidden_modes.ipynb": hidden_modes,
+    "03_fleet_batch.ipynb": fleet,
+    "04_identified_impulse_response.ipynb": identified_impulse_response,
+}
 
 
 if __name__ == "__main__":
-    nbformat.write(canonical_forms(), HERE / "01_canonical_forms.ipynb")
-    nbformat.write(hidden_modes(), HERE / "02_hidden_modes.ipynb")
-    nbformat.write(fleet(), HERE / "03_fleet_batch.ipynb")
-    nbformat.write(identified_impulse_response(), HERE / "04_identified_impulse_response.ipynb")
-    print("wrote", HERE / "01_canonical_forms.ipynb", HERE / "02_hidden_modes.ipynb")
+    for name, make in NOTEBOOKS.items():
+        nbformat.write(make(), HERE / name)
+        print("wrote", HERE / name)

@@ -35,6 +35,7 @@ pub mod recover;
 pub mod scalar;
 pub mod state_space;
 pub mod structure;
+pub mod time;
 
 #[cfg(feature = "python")]
 pub mod python;

@@ -709,3 +709,16 @@ def polynomial_degree(den):
         return None
     nz = [i for i, v in enumerate(values) if v != 0]
     return None if not nz else len(values) - 1 - nz[0]
+
+
+def check_staircase(s, n, m, p=None):
+    assert isinstance(s, sw.Staircase)
+    check_array(s.a, (n, n))
+    if s.b is not None and m is not None:
+        check_array(s.b, (n, m))
+    if p is not None:
+        check_array(s.c, (p, n))
+    check_array(s.transform, (n, n))
+    assert 0 <= s.rank <= n and sum(s.blocks) == s.rank
+    assert all(b > 0 for b in s.blocks)
+    assert math.isfinite(s.tol) and s.tol >= 0

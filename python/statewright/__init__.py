@@ -2,9 +2,9 @@
 linear time-invariant models, with a Rust core.
 
 >>> import statewright as sw
->>> r = sw.realize([1, 3], [1, 3, 2], "observable_canonical")
+>>> r = sw.realize([1.5, 6], [1, 2.4, 3.1, 1.2], "observable_canonical")
 >>> r.n_states
-2
+3
 """
 
 # Layers, bottom to top (tests/package/test_import_graph.py enforces them): _core and
@@ -27,6 +27,13 @@ from ._api.structure import (
     observability_matrix,
     observability_staircase,
     similarity,
+)
+from ._api.time import (
+    frequency_response,
+    frequency_response_batch,
+    to_continuous,
+    to_continuous_batch,
+    to_discrete,
 )
 from ._api.transfer_matrix import realize_transfer_matrix
 from ._core import ModelError
@@ -61,4 +68,9 @@ __all__ = [
     "balanced_realization",
     "realize_expression",
     "from_scipy",
+    "to_discrete",
+    "to_continuous",
+    "frequency_response",
+    "frequency_response_batch",
+    "to_continuous_batch",
 ]

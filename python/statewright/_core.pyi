@@ -63,3 +63,20 @@ def realize_transfer_matrix_float(
 def realize_transfer_matrix_exact(
     num: _Exact, den: _Exact, p: int, m: int, form: str
 ) -> Tuple[_Exact, _Exact, _Exact, _Exact]: ...
+
+# time base: (A, B, C, D) read-only and the figures of the computation
+def convert_time_base(
+    model: _Model, sample_time: float, method: str, prewarp_frequency: Optional[float], forward: bool
+) -> Tuple[_Quad, Dict[str, float]]: ...
+def convert_time_base_exact(
+    model: Tuple[_Exact, _Exact, _Exact, _Exact], sample_time: Tuple[int, int], method: str, forward: bool
+) -> Tuple[_Exact, _Exact, _Exact, _Exact]: ...
+def frequency_response(
+    model: _Model, frequencies: _F64, sample_time: Optional[float]
+) -> npt.NDArray[np.complex128]: ...
+def frequency_response_batch(
+    models: _Quad, frequencies: _F64, sample_time: Optional[float]
+) -> npt.NDArray[np.complex128]: ...
+def to_continuous_batch(
+    models: _Quad, sample_time: float, method: str, prewarp_frequency: Optional[float]
+) -> Tuple[_Quad, _F64]: ...

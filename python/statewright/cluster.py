@@ -7,8 +7,8 @@ scheduler). Dask is optional: ``pip install "dask[array,distributed]"``.
 
 >>> import dask.array as da, numpy as np, statewright as sw
 >>> from statewright.cluster import realize_batch_dask
->>> num = da.from_array(np.array([[1.0, 3.0], [2.0, 0.0]]), chunks=(1, 2))
->>> den = da.from_array(np.array([[1.0, 3.0, 2.0], [1.0, 0.0, 4.0]]), chunks=(1, 3))
+>>> num = da.from_array(np.array([[0.5, 4.0], [2.0, 0.0]]), chunks=(1, 2))
+>>> den = da.from_array(np.array([[1.0, 1.2, 5.0], [1.0, 0.0, 4.0]]), chunks=(1, 3))
 >>> A, B, C, D = realize_batch_dask(num, den)
 >>> A.compute(scheduler="synchronous").shape
 (2, 2, 2)

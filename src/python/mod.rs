@@ -7,7 +7,7 @@
 //! in the core is a bug; the last-resort guard reports it as `ModelError` rather than
 //! letting it abort the caller's kernel.
 //!
-//! One file per area, each thin: `realize`, `recover`, `structure`, `identify`, `batch`;
+//! One file per area, each thin: `realize`, `recover`, `hessenberg`, `structure`, `identify`, `batch`, `time`;
 //! the shared conversions (`convert`: the one `(a, b, c, d)` model argument, result arrays,
 //! exact data) and the error mapping and GIL release (`errors`).
 
@@ -19,6 +19,7 @@ mod identify;
 mod realize;
 mod recover;
 mod structure;
+mod time;
 
 use pyo3::prelude::*;
 
@@ -75,5 +76,11 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
         hessenberg::transfer_function_batch_hessenberg,
         m
     )?)?;
+    // time base
+    m.add_function(wrap_pyfunction!(time::convert_time_base, m)?)?;
+    m.add_function(wrap_pyfunction!(time::convert_time_base_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(time::frequency_response, m)?)?;
+    m.add_function(wrap_pyfunction!(time::frequency_response_batch, m)?)?;
+    m.add_function(wrap_pyfunction!(time::to_continuous_batch, m)?)?;
     Ok(())
 }

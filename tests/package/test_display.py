@@ -16,13 +16,13 @@ SHOWN = 12  # rows and columns shown before eliding
 
 
 def bmatrices(tex):
-    """The bodies of the bmatrix environments, in order."""
-    return re.findall(r"\\begin\{bmatrix\}(.*?)\\end\{bmatrix\}", tex)
+    """The bodies of the bracketed matrix arrays (one per matrix), in order."""
+    return re.findall(r"\\left\[\\begin\{array\}\{[^}]*\}(.*?)\\end\{array\}\\right\]", tex)
 
 
 def grid(body):
-    """A bmatrix body as a list of rows of entries."""
-    return [[e.strip() for e in row.split("&")] for row in body.split(r"\\")]
+    """A matrix body as a list of rows of entries (rules between blocks dropped)."""
+    return [[e.strip() for e in row.replace(r"\hline", "").split("&")] for row in body.split(r"\\")]
 
 
 def named_blocks(text):
@@ -40,7 +40,8 @@ def named_blocks(text):
 
 def assert_balanced(tex):
     assert tex.startswith("$") and tex.endswith("$") and tex.count("$") == 2
-    assert tex.count(r"\begin{bmatrix}") == tex.count(r"\end{bmatrix}")
+    assert tex.count(r"\begin{array}") == tex.count(r"\end{array}")
+    assert "bmatrix" not in tex  # the default matrix environments stop at ten columns
     assert tex.count("{") == tex.count("}")
     for body in bmatrices(tex):
         widths = {len(row) for row in grid(body)}

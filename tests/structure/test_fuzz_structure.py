@@ -16,19 +16,6 @@ from fuzz_strategies import watchdog_output  # noqa: F401  (autouse fixture: the
 # --------------------------------------------------------------------------------------
 
 
-def check_staircase(s, n, m, p=None):
-    assert isinstance(s, sw.Staircase)
-    check_array(s.a, (n, n))
-    if s.b is not None and m is not None:
-        check_array(s.b, (n, m))
-    if p is not None:
-        check_array(s.c, (p, n))
-    check_array(s.transform, (n, n))
-    assert 0 <= s.rank <= n and sum(s.blocks) == s.rank
-    assert all(b > 0 for b in s.blocks)
-    assert math.isfinite(s.tol) and s.tol >= 0
-
-
 # The two staircases are duals: (function, decision, which of B and C is the pair's own).
 STAIRCASES = {
     "controllability": (sw.controllability_staircase, sw.is_controllable, "b"),

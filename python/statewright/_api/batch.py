@@ -104,7 +104,7 @@ def realize_batch(
     Examples
     --------
     >>> import numpy as np, statewright as sw
-    >>> A, B, C, D = sw.realize_batch([[1, 3], [2, 0]], [[1, 3, 2], [1, 0, 4]])
+    >>> A, B, C, D = sw.realize_batch([[0.5, 4], [2, 0]], [[1, 1.2, 5], [1, 0, 4]])
     >>> A.shape, bool(np.array_equal(A[1], sw.realize([2, 0], [1, 0, 4]).a))
     ((2, 2, 2), True)
     """
@@ -157,12 +157,12 @@ def transfer_function_batch(
     Examples
     --------
     >>> import numpy as np, statewright as sw
-    >>> A, B, C, D = sw.realize_batch([[1, 3], [2, 0]], [[1, 3, 2], [1, 0, 4]])
+    >>> A, B, C, D = sw.realize_batch([[0.5, 4], [2, 0]], [[1, 1.2, 5], [1, 0, 4]])
     >>> num, den = sw.transfer_function_batch(A, B, C, D)
     >>> num[:, 0, 0], den
-    (array([[0., 1., 3.],
-           [0., 2., 0.]]), array([[1., 3., 2.],
-           [1., 0., 4.]]))
+    (array([[0. , 0.5, 4. ],
+           [0. , 2. , 0. ]]), array([[1. , 1.2, 5. ],
+           [1. , 0. , 4. ]]))
     """
     _check_progress(progress)
     mats = [

@@ -9,6 +9,7 @@ from typing import Any, Optional, Tuple
 import numpy as np
 
 from .. import _core
+from .._base import time_base as tb
 from .._base import validate as v
 from .._compute import identify as compute
 from .._core import ModelError
@@ -44,7 +45,9 @@ def _triple(a: Any, b: Any, c: Any) -> Tuple[np.ndarray, np.ndarray, np.ndarray]
     return fa, fb, fc
 
 
-def realize_markov(markov: Any, order: Optional[int] = None, *, tol: Optional[float] = None) -> Realization:
+def realize_markov(
+    markov: Any, order: Optional[int] = None, *, tol: Optional[float] = None, sample_time: float = 1.0
+) -> Realization:
     r"""A discrete-time realization from Markov parameters (Ho–Kalman / SVD of the Hankel matrix).
 
     Finds ``(A, B, C, D)`` with ``markov[0] = D`` and ``markov[i] = C A^(i-1) B``.
@@ -55,15 +58,24 @@ def realize_markov(markov: Any, order: Optional[int] = None, *, tol: Optional[fl
         Markov parameters (impulse-response matrices), ``markov[0]`` the feedthrough D.
         A 1-D array of length k is read as a single-input single-output sequence (k, 1, 1).
     order : int, optional
-        The state dimension. Default: the number of Hankel singular values above ``tol``.
+        The state dimension. Default: the number of singular values of the data's block
+        Hankel matrix H above ``tol``.
     tol : float, optional
         Default ``n**2 * eps * ||H||_F``, n the smaller side of the block Hankel matrix H.
+    sample_time : float, optional
+        Seconds per step of the sequence (default 1.0): the result's ``.sample_time``, the
+        time base its methods (``.to_continuous()``, ``.frequency_response(w)``, ...) use.
 
     Returns
     -------
     Realization
-        ``.info`` holds ``"singular_values"`` (all Hankel singular values, descending),
-        ``"order"``, ``"tol"`` and ``"hankel_blocks"`` (block rows, block columns).
+        A discrete-time realization (``.sample_time`` set). ``.info`` holds
+        ``"singular_values"`` (all singular values of the data's block Hankel matrix H,
+        descending), ``"order"``, ``"tol"`` and ``"hankel_blocks"`` (block
+        rows, block columns). H is a finite section of the model's Hankel operator, built
+        from the (possibly noisy) data: its singular values are not the model's Hankel
+        singular values (:func:`hankel_singular_values`, from the Gramians), and differ
+        from them for short or noisy records.
 
     Raises
     ------
@@ -101,6 +113,7 @@ def realize_markov(markov: Any, order: Optional[int] = None, *, tol: Optional[fl
         )
     if arr.shape[0] == 0:
         raise ModelError("markov: expected at least one Markov parameter (markov[0] = D), found none")
+    t = tb.sample_time(sample_time)
     (a, b, c, d), sv, n, tol_used, blocks = _core.realize_markov(arr, _order(order), v.tol(tol))
     sv.flags.writeable = False
     info = {
@@ -109,7 +122,7 @@ def realize_markov(markov: Any, order: Optional[int] = None, *, tol: Optional[fl
         "tol": float(tol_used),
         "hankel_blocks": (int(blocks[0]), int(blocks[1])),
     }
-    return Realization._trusted(a, b, c, d, info)
+    return Realization._trusted(a, b, c, d, info, sample_time=t)
 
 
 def gramians(a: Any, b: Any, c: Any, *, discrete: bool = False) -> Tuple[np.ndarray, np.ndarray]:
@@ -211,7 +224,7 @@ def balanced_realization(
     Examples
     --------
     >>> import numpy as np, statewright as sw
-    >>> r = sw.realize([1.0, 2.0], [1.0, 3.0, 2.0])               # (s + 2) / ((s + 1)(s + 2))
+    >>> r = sw.realize([1.0, 4.0], [1.0, 5.5, 6.0])               # (s + 4) / ((s + 1.5)(s + 4))
     >>> br = sw.balanced_realization(*r, order=1)
     >>> br.n_states, float(br.info["error_bound"]) < 1e-8          # a cancellation: nothing lost
     (1, True)

@@ -144,7 +144,7 @@ def realize_expression(
     Parameters
     ----------
     expr : sympy expression, or a pair of sympy Polys
-        A scalar expression rational in ``symbol`` (``(s + 3) / (s**2 + 3*s + 2)``,
+        A scalar expression rational in ``symbol`` (``(7*s + 9) / (s**2 + 5*s + 11)``,
         ``1 / (1 - z**-1 / 2)``, sums and products of such), brought to one fraction by
         ``sympy.together``; or a ``(numerator, denominator)`` pair of sympy ``Poly``\ s (or
         polynomial expressions) in ``symbol``. Common factors of numerator and denominator
@@ -177,11 +177,11 @@ def realize_expression(
     --------
     >>> import sympy, statewright as sw
     >>> s = sympy.Symbol("s")
-    >>> r = sw.realize_expression((s + 3) / (2 * s**2 + 6 * s + 4), s)
+    >>> r = sw.realize_expression((7 * s + 9) / (2 * s**2 + 10 * s + 22), s)
     >>> r.a.tolist()
-    [[Fraction(0, 1), Fraction(1, 1)], [Fraction(-2, 1), Fraction(-3, 1)]]
+    [[Fraction(0, 1), Fraction(1, 1)], [Fraction(-11, 1), Fraction(-5, 1)]]
     >>> r.c.tolist()
-    [[Fraction(3, 2), Fraction(1, 2)]]
+    [[Fraction(9, 2), Fraction(7, 2)]]
     """
     sympy = require("sympy", "realize_expression")
     if not isinstance(symbol, sympy.Symbol):
@@ -270,10 +270,10 @@ def from_scipy(system: Any, form: Optional[str] = None) -> Realization:
     Examples
     --------
     >>> import scipy.signal, statewright as sw
-    >>> r = sw.from_scipy(scipy.signal.TransferFunction([1, 3], [1, 3, 2]), "observable_canonical")
+    >>> r = sw.from_scipy(scipy.signal.TransferFunction([0.5, 4], [1, 1.2, 5]), "observable_canonical")
     >>> r.a
-    array([[ 0., -2.],
-           [ 1., -3.]])
+    array([[ 0. , -5. ],
+           [ 1. , -1.2]])
     """
     if form is not None:
         form = v.check_option(form, "form", FORMS)

@@ -73,11 +73,11 @@ def realize(num: Any, den: Any, form: str = "controllable_canonical", *, exact: 
     Examples
     --------
     >>> import numpy as np, statewright as sw
-    >>> r = sw.realize([1, 3], [1, 3, 2], "observable_canonical")
+    >>> r = sw.realize([0.5, 4], [1, 1.2, 5], "observable_canonical")   # (0.5 s + 4) / (s^2 + 1.2 s + 5)
     >>> r.a
-    array([[ 0., -2.],
-           [ 1., -3.]])
-    >>> bool(np.allclose(r.evaluate(1j), (1j + 3) / ((1j) ** 2 + 3j + 2)))
+    array([[ 0. , -5. ],
+           [ 1. , -1.2]])
+    >>> bool(np.allclose(r.evaluate(1j), (0.5j + 4) / ((1j) ** 2 + 1.2j + 5)))
     True
     """
     form = v.check_option(form, "form", FORMS)

@@ -212,7 +212,7 @@ def minimal_realization(a: Any, b: Any, c: Any, d: Any, *, tol: Optional[float] 
     Examples
     --------
     >>> import statewright as sw
-    >>> r = sw.realize([1, 1], [1, 3, 2])          # (s + 1) / ((s + 1)(s + 2))
+    >>> r = sw.realize([1, 1.5], [1, 5.5, 6])      # (s + 1.5) / ((s + 1.5)(s + 4))
     >>> sw.minimal_realization(*r).n_states
     1
     """
@@ -238,8 +238,8 @@ def similarity(r1: Any, r2: Any, *, tol: Optional[float] = None) -> np.ndarray:
     Examples
     --------
     >>> import numpy as np, statewright as sw
-    >>> r1 = sw.realize([1, 3], [1, 3, 2], "controllable_canonical")
-    >>> r2 = sw.realize([1, 3], [1, 3, 2], "controller")
+    >>> r1 = sw.realize([0.5, 4], [1, 1.2, 5], "controllable_canonical")
+    >>> r2 = sw.realize([0.5, 4], [1, 1.2, 5], "controller")
     >>> t = sw.similarity(r1, r2)
     >>> bool(np.allclose(r1.transform(t).a, r2.a))
     True

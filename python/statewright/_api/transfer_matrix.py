@@ -136,18 +136,18 @@ def realize_transfer_matrix(
     --------
     >>> import numpy as np, statewright as sw
     >>> num = [[[0, 1], [0, 2]],
-    ...        [[1, 3], [0, 1]]]          # [[1/(s+1), 2/(s+2)], [(s+3)/(s+2), 1/(s+1)]]
-    >>> den = [[[1, 1], [1, 2]],
-    ...        [[1, 2], [1, 1]]]
+    ...        [[1, 2.5], [0, 1.5]]]      # [[1/(s+0.5), 2/(s+4)], [(s+2.5)/(s+4), 1.5/(s+0.5)]]
+    >>> den = [[[1, 0.5], [1, 4]],
+    ...        [[1, 4], [1, 0.5]]]
     >>> r = sw.realize_transfer_matrix(num, den)
     >>> r.n_states                        # one block of order 2 per input column
     4
     >>> s = 0.5 + 1j
-    >>> bool(np.allclose(r.evaluate(s), [[1 / (s + 1), 2 / (s + 2)], [(s + 3) / (s + 2), 1 / (s + 1)]]))
+    >>> bool(np.allclose(r.evaluate(s), [[1 / (s + 0.5), 2 / (s + 4)], [(s + 2.5) / (s + 4), 1.5 / (s + 0.5)]]))
     True
-    >>> [[str(x) for x in row] for row in sw.realize_transfer_matrix([[[1], [1]]], [1, 3, 2], exact=True).a]
-    [['0', '1', '0', '0'], ['-2', '-3', '0', '0'], ['0', '0', '0', '1'], ['0', '0', '-2', '-3']]
-    >>> sw.realize_transfer_matrix([[[1], [1]]], [1, 3, 2], "block_observer", minimal=True).n_states
+    >>> [[str(x) for x in row] for row in sw.realize_transfer_matrix([[[1], [1]]], [2, 9, 4], exact=True).a]
+    [['0', '1', '0', '0'], ['-2', '-9/2', '0', '0'], ['0', '0', '0', '1'], ['0', '0', '-2', '-9/2']]
+    >>> sw.realize_transfer_matrix([[[1], [1]]], [2, 9, 4], "block_observer", minimal=True).n_states
     2
     """
     form = v.check_option(form, "form", TRANSFER_MATRIX_FORMS)

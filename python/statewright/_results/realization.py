@@ -9,11 +9,13 @@ from typing import Any, Dict, Iterator, Mapping, Optional, SupportsIndex, Tuple,
 import numpy as np
 import numpy.typing as npt
 
+from .._base import time_base as tb
 from .._base import validate as v
-from .._base.display import latex_matrix, text_matrix
+from .._base.display import realization_latex, text_matrix
 from .._base.exact import solve
 from .._base.scaling import range_exponent, times_pow2
-from .._compute import interop, recover, structure
+from .._compute import identify, interop, recover, structure
+from .._compute import time as time_compute
 from .._compute.recover import METHODS
 from .._core import ModelError
 from .structure import Decomposition, Staircase
@@ -52,6 +54,10 @@ class Realization:
         Fractions make an exact realization.
     info : mapping, optional
         Diagnostics from the computation that made the realization.
+    sample_time : float, optional
+        The time base: None (default) for continuous time, a positive number of seconds
+        per step for discrete time (a Fraction for exact realizations made with
+        ``exact=True``). Every method that depends on it uses it.
 
     Raises
     ------
@@ -59,9 +65,18 @@ class Realization:
         When the shapes do not fit together or an entry is not finite.
     """
 
-    __slots__ = ("_a", "_b", "_c", "_d", "_info")
+    __slots__ = ("_a", "_b", "_c", "_d", "_info", "_sample_time")
 
-    def __init__(self, a: Any, b: Any, c: Any, d: Any, info: Optional[Mapping[str, Any]] = None) -> None:
+    def __init__(
+        self,
+        a: Any,
+        b: Any,
+        c: Any,
+        d: Any,
+        info: Optional[Mapping[str, Any]] = None,
+        *,
+        sample_time: Optional[float] = None,
+    ) -> None:
         exact = any(_holds_fraction(x) for x in (a, b, c, d))
         if exact:
             arrays = [v.exact_matrix(x, name) for x, name in zip((a, b, c, d), "abcd")]
@@ -72,6 +87,7 @@ class Realization:
         if info is not None and not isinstance(info, Mapping):
             raise ModelError(f"info: expected a mapping of diagnostics or None, found a {type(info).__name__}")
         self._info = types.MappingProxyType(dict(info or {}))
+        self._sample_time = _time_base(sample_time)
 
     @classmethod
     def _trusted(
@@ -82,6 +98,7 @@ class Realization:
         d: np.ndarray,
         info: Optional[Mapping[str, Any]] = None,
         frozen: bool = False,
+        sample_time: Any = None,
     ) -> "Realization":
         """Wraps arrays fresh from the core (already checked) without another copy."""
         self = cls.__new__(cls)
@@ -90,6 +107,7 @@ class Realization:
         else:
             self._a, self._b, self._c, self._d = (v.frozen(x) for x in (a, b, c, d))
         self._info = types.MappingProxyType(dict(info)) if info else _NO_INFO
+        self._sample_time = sample_time
         return self
 
     # -- the four matrices -------------------------------------------------------------
@@ -117,6 +135,16 @@ class Realization:
     def info(self) -> Mapping[str, Any]:
         """Read-only diagnostics of the computation that made this realization."""
         return self._info
+
+    @property
+    def sample_time(self) -> Any:
+        """The time base: None for continuous time, else seconds per step (discrete time)."""
+        return self._sample_time
+
+    @property
+    def discrete(self) -> bool:
+        """True for a discrete-time realization (``sample_time`` is set)."""
+        return self._sample_time is not None
 
     @property
     def n_states(self) -> int:
@@ -159,7 +187,14 @@ class Realization:
     def __reduce__(self) -> Tuple[Any, ...]:
         return (
             _rebuild,
-            (np.array(self._a), np.array(self._b), np.array(self._c), np.array(self._d), dict(self._info)),
+            (
+                np.array(self._a),
+                np.array(self._b),
+                np.array(self._c),
+                np.array(self._d),
+                dict(self._info),
+                self._sample_time,
+            ),
         )
 
     # -- analysis ----------------------------------------------------------------------
@@ -247,7 +282,7 @@ class Realization:
             self._check_transform(tm)
             a = solve(tm, self._a.dot(tm), "t")
             b = solve(tm, self._b, "t")
-            return Realization(a, b, self._c.dot(tm), self._d)
+            return Realization._trusted(a, b, self._c.dot(tm), self._d, sample_time=self._sample_time)
         tm = v.float_matrix(t, "t")
         self._check_transform(tm)
         a, b, c, d = self._float()
@@ -259,7 +294,7 @@ class Realization:
         parts = (sol[:, :n], sol[:, n:], c @ tm)
         if not all(np.all(np.isfinite(x)) for x in parts):
             raise ModelError("t: the transformed realization overflows float64 (T is too badly scaled)")
-        return Realization(*parts, d)
+        return Realization(*parts, d, sample_time=self._sample_time)
 
     def _check_transform(self, tm: np.ndarray) -> None:
         n = self.n_states
@@ -323,21 +358,95 @@ class Realization:
     def kalman_decomposition(self, *, tol: Optional[float] = None) -> Decomposition:
         """:func:`statewright.kalman_decomposition` of this realization."""
         arrays, t, sizes, info = structure.kalman_decomposition(*self._float(), v.tol(tol))
-        return Decomposition(Realization._trusted(*arrays), t, sizes, info)
+        return Decomposition(Realization._trusted(*arrays, sample_time=self._sample_time), t, sizes, info)
 
     def minimal_realization(self, *, tol: Optional[float] = None) -> "Realization":
         """:func:`statewright.minimal_realization` of this realization."""
         arrays, info = structure.minimal_realization(*self._float(), v.tol(tol))
-        return Realization._trusted(*arrays, info)
+        return Realization._trusted(*arrays, info, sample_time=self._sample_time)
+
+    # -- time base: every method below uses the realization's own sample_time -----------
+    def gramians(self) -> Tuple[np.ndarray, np.ndarray]:
+        """:func:`statewright.gramians` ``(Wc, Wo)`` in this realization's time base."""
+        a, b, c, _ = self._float()
+        return identify.gramians(a, b, c, self.discrete)
+
+    def hankel_singular_values(self) -> np.ndarray:
+        """:func:`statewright.hankel_singular_values` in this realization's time base."""
+        a, b, c, _ = self._float()
+        return identify.hankel_singular_values(a, b, c, self.discrete)
+
+    def balanced(self, order: Optional[int] = None) -> "Realization":
+        """:func:`statewright.balanced_realization` (truncated to ``order`` states when
+        given) in this realization's time base; the result keeps it."""
+        arrays, info = identify.balanced_realization(
+            *self._float(), tb.state_order(order, self.n_states), self.discrete
+        )
+        return Realization._trusted(*arrays, info, sample_time=self._sample_time)
+
+    def frequency_response(self, frequencies: npt.ArrayLike) -> np.ndarray:
+        """:func:`statewright.frequency_response` at ``frequencies`` (rad/s): ``G(jw)``, or
+        ``G(exp(jwT))`` for a discrete realization. A (k, p, m) complex array."""
+        t = None if self._sample_time is None else float(self._sample_time)
+        return time_compute.frequency_response(self._float(), tb.frequencies(frequencies), t)
+
+    def to_discrete(
+        self,
+        sample_time: Any,
+        method: str = "zero_order_hold",
+        *,
+        prewarp_frequency: Optional[float] = None,
+        exact: bool = False,
+    ) -> "Realization":
+        """:func:`statewright.to_discrete` of this continuous realization.
+
+        ``exact=True`` needs an exact realization, an exact sample time and a rational
+        method; a discrete realization is refused (convert it to continuous time first).
+        """
+        if self._sample_time is not None:
+            raise ModelError(
+                f"sample_time: this realization is already discrete (sample_time={self._sample_time}); "
+                "call .to_continuous() first to resample it"
+            )
+        return self._convert(sample_time, method, prewarp_frequency, exact, True)
+
+    def to_continuous(
+        self, method: str = "zero_order_hold", *, prewarp_frequency: Optional[float] = None, exact: bool = False
+    ) -> "Realization":
+        """:func:`statewright.to_continuous` of this discrete realization, with its own
+        sample time; a continuous realization is refused."""
+        if self._sample_time is None:
+            raise ModelError(
+                "sample_time: this realization is continuous (sample_time is None); to_continuous needs a discrete one"
+            )
+        return self._convert(self._sample_time, method, prewarp_frequency, exact, False)
+
+    def _convert(self, sample_time: Any, method: Any, prewarp: Any, exact: Any, forward: bool) -> "Realization":
+        exact = v.check_flag(exact, "exact")
+        method = tb.method(method, exact)
+        prewarp = tb.prewarp_frequency(prewarp, exact)
+        if exact:
+            if not self.exact:
+                raise ModelError("exact: exact=True needs an exact realization (Fractions); this one is float64")
+            t = tb.exact_sample_time(sample_time)
+            out = time_compute.convert_exact(tuple(self), t, method, forward)  # type: ignore[arg-type]
+            return Realization._trusted(*out, {"method": method, "sample_time": t}, sample_time=t if forward else None)
+        t = tb.sample_time(sample_time)
+        out, info = time_compute.convert(self._float(), t, method, prewarp, forward)
+        return Realization._trusted(*out, info, frozen=True, sample_time=t if forward else None)
 
     # -- display -----------------------------------------------------------------------
     def _repr_latex_(self) -> str:
-        parts = [rf"{name} = {latex_matrix(m)}" for name, m in zip("ABCD", self)]
-        return "$" + r",\quad ".join(parts) + "$"
+        """Typeset matrices under a caption of the size, time base and arithmetic
+        (``statewright._base.display``)."""
+        return realization_latex(self)
 
     def __repr__(self) -> str:
         kind = "exact " if self.exact else ""
-        head = f"Realization({kind}n_states={self.n_states}, n_inputs={self.n_inputs}, n_outputs={self.n_outputs})"
+        base = "" if self._sample_time is None else f", sample_time={self._sample_time}"
+        head = (
+            f"Realization({kind}n_states={self.n_states}, n_inputs={self.n_inputs}, n_outputs={self.n_outputs}{base})"
+        )
         body = []
         for name, m in zip("ABCD", self):
             text = text_matrix(m)
@@ -345,5 +454,14 @@ class Realization:
         return head + "\n" + "\n".join(body)
 
 
-def _rebuild(a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, info: Dict[str, Any]) -> Realization:
-    return Realization._trusted(a, b, c, d, info)
+def _rebuild(
+    a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, info: Dict[str, Any], sample_time: Any = None
+) -> Realization:
+    return Realization._trusted(a, b, c, d, info, sample_time=sample_time)
+
+
+def _time_base(value: Any) -> Any:
+    """None, a positive float, or (kept exact) a positive Fraction."""
+    if isinstance(value, Fraction):
+        return tb.exact_sample_time(value)
+    return tb.optional_sample_time(value)

@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING, Any, List, Mapping, Optional, Tuple
 
 import numpy as np
 
-from .._base.display import latex_matrix
+from .._base.display import decomposition_latex, staircase_latex
 from .._base.validate import frozen
 
 if TYPE_CHECKING:  # pragma: no cover - annotations only; never imported at run time
@@ -93,14 +93,8 @@ class Staircase:
         )
 
     def _repr_latex_(self) -> str:
-        # Show the block structure: A partitioned at the step boundaries.
-        a = self.a
-        cuts = np.cumsum(self.blocks).tolist()
-        if self.rank < self.n_states:
-            cuts = cuts[:-1] + [self.rank]
-        body = latex_matrix(a)
-        head = rf"\text{{{self.kind} staircase: rank {self.rank} of {self.n_states}, blocks {self.blocks}}}"
-        return "$" + head + r"\quad Q^T A Q = " + body + r",\quad Q^T B = " + latex_matrix(self.b) + "$"
+        """Q^T A Q, Q^T B (and C Q) with a rule after every step: the staircase of blocks."""
+        return staircase_latex(self)
 
 
 class Decomposition:
@@ -155,5 +149,5 @@ class Decomposition:
         return f"Decomposition({parts}; condition of T {self.info['condition']:.3g})"
 
     def _repr_latex_(self) -> str:
-        head = rf"\text{{Kalman decomposition, sizes {self.sizes}}}\quad T^{{-1}} A T = "
-        return "$" + head + latex_matrix(self.realization.a) + "$"
+        """The transformed model with rules between its four parts."""
+        return decomposition_latex(self)

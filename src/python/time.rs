@@ -1,0 +1,201 @@
+//! Bindings of the time base: conversions between continuous and discrete time and
+//! frequency responses, for single models and batches.
+
+use super::convert::{
+    array_nd, exact_model_from, exact_quad, model_from, quad, ExactIn, ExactOut, ModelIn, Quad,
+};
+use super::errors::{run, run_small, to_py, ModelError, SMALL_ORDER};
+use crate::error::ModelError as CoreError;
+use crate::time::batch::{self as time_batch, BatchShape, ModelStack};
+use crate::time::conversion::{self, DiscretizationMethod};
+use crate::time::frequency_response as response;
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::Zero;
+use numpy::{ndarray, Complex64, PyArray, PyReadonlyArray1, PyReadonlyArray3};
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+
+fn parse_method(method: &str) -> PyResult<DiscretizationMethod> {
+    method.parse().map_err(to_py)
+}
+
+fn info_dict<'py>(py: Python<'py>, info: &[(&'static str, f64)]) -> PyResult<Bound<'py, PyDict>> {
+    let d = PyDict::new(py);
+    for (k, v) in info {
+        d.set_item(*k, *v)?;
+    }
+    Ok(d)
+}
+
+fn complex_array<'py>(
+    py: Python<'py>,
+    data: Vec<Complex64>,
+    shape: &[usize],
+) -> PyResult<Bound<'py, PyAny>> {
+    let owned = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(shape), data)
+        .map_err(|e| ModelError::new_err(format!("internal error: result shape ({e})")))?;
+    Ok(PyArray::from_owned_array(py, owned).into_any())
+}
+
+type Converted<'py> = (Quad<'py>, Bound<'py, PyDict>);
+
+#[pyfunction]
+#[pyo3(signature = (model, sample_time, method, prewarp_frequency, forward))]
+pub(crate) fn convert_time_base<'py>(
+    py: Python<'py>,
+    model: ModelIn<'py>,
+    sample_time: f64,
+    method: &str,
+    prewarp_frequency: Option<f64>,
+    forward: bool,
+) -> PyResult<Converted<'py>> {
+    let method = parse_method(method)?;
+    let ss = model_from(&model)?;
+    let convert = move || {
+        if forward {
+            conversion::to_discrete(&ss, sample_time, method, prewarp_frequency)
+        } else {
+            conversion::to_continuous(&ss, sample_time, method, prewarp_frequency)
+        }
+    };
+    let r = if model.0.as_array().dim().0 < SMALL_ORDER {
+        run_small(convert)?
+    } else {
+        run(py, convert)?
+    };
+    Ok((quad(py, r.realization, true)?, info_dict(py, &r.info)?))
+}
+
+fn exact_time(t: (BigInt, BigInt)) -> PyResult<BigRational> {
+    if t.1.is_zero() {
+        return Err(to_py(CoreError::BadValue {
+            arg: "sample_time",
+            detail: "a fraction has a zero denominator".into(),
+        }));
+    }
+    Ok(BigRational::new(t.0, t.1))
+}
+
+type ExactQuad = (ExactOut, ExactOut, ExactOut, ExactOut);
+
+#[pyfunction]
+#[pyo3(signature = (model, sample_time, method, forward))]
+pub(crate) fn convert_time_base_exact(
+    py: Python<'_>,
+    model: (ExactIn, ExactIn, ExactIn, ExactIn),
+    sample_time: (BigInt, BigInt),
+    method: &str,
+    forward: bool,
+) -> PyResult<ExactQuad> {
+    let method = parse_method(method)?;
+    let (ss, t) = (exact_model_from(model)?, exact_time(sample_time)?);
+    let r = run(py, move || {
+        if forward {
+            conversion::to_discrete_exact(&ss, &t, method)
+        } else {
+            conversion::to_continuous_exact(&ss, &t, method)
+        }
+    })?;
+    Ok(exact_quad(r))
+}
+
+#[pyfunction]
+#[pyo3(signature = (model, frequencies, sample_time))]
+pub(crate) fn frequency_response<'py>(
+    py: Python<'py>,
+    model: ModelIn<'py>,
+    frequencies: PyReadonlyArray1<'py, f64>,
+    sample_time: Option<f64>,
+) -> PyResult<Bound<'py, PyAny>> {
+    let ss = model_from(&model)?;
+    let (p, m) = (ss.n_outputs(), ss.n_inputs());
+    let w: Vec<f64> = frequencies.as_array().iter().copied().collect();
+    let k = w.len();
+    let g = run(py, move || {
+        response::frequency_response(&ss, &w, sample_time, true)
+    })?;
+    complex_array(py, g, &[k, p, m])
+}
+
+type StackIn<'py> = (
+    PyReadonlyArray3<'py, f64>,
+    PyReadonlyArray3<'py, f64>,
+    PyReadonlyArray3<'py, f64>,
+    PyReadonlyArray3<'py, f64>,
+);
+
+/// The shapes and flat copies of a stack of models (shapes checked by the core).
+fn stack_from(models: &StackIn<'_>) -> (BatchShape, [Vec<f64>; 4]) {
+    let (a, b, c, _) = models;
+    let (count, n, _) = a.as_array().dim();
+    let m = b.as_array().dim().2;
+    let p = c.as_array().dim().1;
+    let flat = |x: &PyReadonlyArray3<'_, f64>| x.as_array().iter().copied().collect::<Vec<f64>>();
+    (
+        BatchShape { count, n, m, p },
+        [
+            flat(&models.0),
+            flat(&models.1),
+            flat(&models.2),
+            flat(&models.3),
+        ],
+    )
+}
+
+#[pyfunction]
+#[pyo3(signature = (models, frequencies, sample_time))]
+pub(crate) fn frequency_response_batch<'py>(
+    py: Python<'py>,
+    models: StackIn<'py>,
+    frequencies: PyReadonlyArray1<'py, f64>,
+    sample_time: Option<f64>,
+) -> PyResult<Bound<'py, PyAny>> {
+    let (shape, [a, b, c, d]) = stack_from(&models);
+    let w: Vec<f64> = frequencies.as_array().iter().copied().collect();
+    let k = w.len();
+    let g = run(py, move || {
+        let stack = ModelStack {
+            shape,
+            a: &a,
+            b: &b,
+            c: &c,
+            d: &d,
+        };
+        time_batch::frequency_response_batch(&stack, &w, sample_time)
+    })?;
+    complex_array(py, g, &[shape.count, k, shape.p, shape.m])
+}
+
+#[pyfunction]
+#[pyo3(signature = (models, sample_time, method, prewarp_frequency))]
+pub(crate) fn to_continuous_batch<'py>(
+    py: Python<'py>,
+    models: StackIn<'py>,
+    sample_time: f64,
+    method: &str,
+    prewarp_frequency: Option<f64>,
+) -> PyResult<(Quad<'py>, Bound<'py, PyAny>)> {
+    let method = parse_method(method)?;
+    let (shape, [a, b, c, d]) = stack_from(&models);
+    let r = run(py, move || {
+        let stack = ModelStack {
+            shape,
+            a: &a,
+            b: &b,
+            c: &c,
+            d: &d,
+        };
+        time_batch::to_continuous_batch(&stack, sample_time, method, prewarp_frequency)
+    })?;
+    let BatchShape { count, n, m, p } = shape;
+    Ok((
+        (
+            array_nd(py, r.a, &[count, n, n])?,
+            array_nd(py, r.b, &[count, n, m])?,
+            array_nd(py, r.c, &[count, p, n])?,
+            array_nd(py, r.d, &[count, p, m])?,
+        ),
+        array_nd(py, r.residuals, &[count])?,
+    ))
+}
