@@ -232,9 +232,7 @@ pub fn hessenberg_batch(
 ) -> Result<HessenbergBatch> {
     use crate::recover::hessenberg::{HessenbergResult, HessenbergWork};
     let per_num = p * m * (n + 1);
-    let total = count
-        .checked_mul(2 * (per_num + n + 1))
-        .unwrap_or(usize::MAX);
+    let total = count.saturating_mul(2 * (per_num + n + 1));
     check_size("a", total)?;
     crate::recover::check_order_for_batch(n)?;
     let slot = per_num.max(1);

@@ -25,6 +25,7 @@
 //!    a triangle of subdiagonal entries and the trailing block), so
 //!    `c adj(sI − A) b_j = β Σ_i c̃_i (Π_{k<i} h_{k+1,k}) χ_{i+1}(s)` for every output row
 //!    c, and the transfer-matrix numerator is that plus `d_j χ_0`.
+//!
 //! Cost: about (10/3) n³ flops for each reduction and n³/6 for the recurrence, per input.
 //! The denominator is taken from the first input's reduction.
 //!
@@ -41,6 +42,7 @@
 //! * `η · dχ̄/dδ`, the first-order growth of the signless coefficients when every entry of
 //!   the Hessenberg pattern of |H| grows by δ, with `η = n u ‖A‖_F`; likewise
 //!   `n u ‖c‖₂` for the output rows and `n u` relative for β.
+//!
 //! The reduction's error below the subdiagonal is not modelled entry by entry: the estimate
 //! is an estimate, not a bound, and the tests compare it with the exact error on seeded
 //! surveys of well-conditioned, clustered and spread models. Like every route through a
