@@ -144,6 +144,7 @@ pub fn realize_batch(
 }
 
 /// `a` (count, n, n), `b` (count, n, m), `c` (count, p, n), `d` (count, p, m), row-major.
+#[allow(clippy::too_many_arguments)]
 pub fn transfer_function_batch(
     a: &[f64],
     b: &[f64],
@@ -154,6 +155,24 @@ pub fn transfer_function_batch(
     m: usize,
     p: usize,
 ) -> Result<TransferBatch> {
+    transfer_function_batch_with(a, b, c, d, count, (n, m, p), Method::Auto)
+}
+
+/// [`transfer_function_batch`] with a recovery method. `Method::Hessenberg` runs
+/// [`crate::recover::hessenberg`] on one scratch space per thread (no allocation per
+/// model); every other method runs the single-call routine per model.
+pub fn transfer_function_batch_with(
+    a: &[f64],
+    b: &[f64],
+    c: &[f64],
+    d: &[f64],
+    count: usize,
+    (n, m, p): (usize, usize, usize),
+    method: Method,
+) -> Result<TransferBatch> {
+    if method == Method::Hessenberg {
+        return hessenberg_batch(a, b, c, d, count, (n, m, p)).map(|r| r.transfer);
+    }
     let per_num = p * m * (n + 1);
     let total = count.saturating_mul(per_num + n + 1);
     check_size("a", total)?;
@@ -178,7 +197,7 @@ pub fn transfer_function_batch(
                 c: take(c, p, n),
                 d: take(d, p, m),
             };
-            match transfer_function_f64(&ss, Method::Auto) {
+            match transfer_function_f64(&ss, method) {
                 Ok((nm, dn, _)) => {
                     num_i[..per_num].copy_from_slice(&nm);
                     den_i.copy_from_slice(&dn);
@@ -191,4 +210,73 @@ pub fn transfer_function_batch(
         num = Vec::new();
     }
     Ok(TransferBatch { num, den })
+}
+
+/// Stacked transfer matrices from the Hessenberg route with their error estimates.
+pub struct HessenbergBatch {
+    pub transfer: TransferBatch,
+    /// (N, p, m, n+1) and (N, n+1): absolute estimates of each coefficient's error.
+    pub num_estimate: Vec<f64>,
+    pub den_estimate: Vec<f64>,
+}
+
+/// The Hessenberg route over a batch; equal bit for bit to single calls of
+/// [`crate::recover::hessenberg::transfer_function`].
+pub fn hessenberg_batch(
+    a: &[f64],
+    b: &[f64],
+    c: &[f64],
+    d: &[f64],
+    count: usize,
+    (n, m, p): (usize, usize, usize),
+) -> Result<HessenbergBatch> {
+    use crate::recover::hessenberg::{HessenbergResult, HessenbergWork};
+    let per_num = p * m * (n + 1);
+    let total = count.saturating_mul(2 * (per_num + n + 1));
+    check_size("a", total)?;
+    crate::recover::check_order_for_batch(n)?;
+    let slot = per_num.max(1);
+    let (mut num, mut den) = (vec![0.0; count * slot], vec![0.0; count * (n + 1)]);
+    let (mut num_e, mut den_e) = (vec![0.0; count * slot], vec![0.0; count * (n + 1)]);
+    let failure = FirstError::new();
+    num.par_chunks_mut(slot)
+        .zip(den.par_chunks_mut(n + 1))
+        .zip(num_e.par_chunks_mut(slot))
+        .zip(den_e.par_chunks_mut(n + 1))
+        .enumerate()
+        .for_each_init(
+            HessenbergWork::default,
+            |work, (i, (((num_i, den_i), num_ei), den_ei))| {
+                let (ai, bi, ci, di) = (
+                    &a[i * n * n..(i + 1) * n * n],
+                    &b[i * n * m..(i + 1) * n * m],
+                    &c[i * p * n..(i + 1) * p * n],
+                    &d[i * p * m..(i + 1) * p * m],
+                );
+                for (arg, x) in [("a", ai), ("b", bi), ("c", ci), ("d", di)] {
+                    if let Err(e) = crate::error::require_finite(arg, x) {
+                        failure.record(i, e);
+                        return;
+                    }
+                }
+                let out = HessenbergResult {
+                    den: den_i,
+                    den_estimate: den_ei,
+                    num: &mut num_i[..per_num],
+                    num_estimate: &mut num_ei[..per_num],
+                };
+                if let Err(e) = work.transfer_function(ai, bi, ci, di, (n, m, p), out) {
+                    failure.record(i, e);
+                }
+            },
+        );
+    failure.into_result()?;
+    if per_num == 0 {
+        (num, num_e) = (Vec::new(), Vec::new());
+    }
+    Ok(HessenbergBatch {
+        transfer: TransferBatch { num, den },
+        num_estimate: num_e,
+        den_estimate: den_e,
+    })
 }

@@ -7,7 +7,7 @@
 //! in the core is a bug; the last-resort guard reports it as `ModelError` rather than
 //! letting it abort the caller's kernel.
 //!
-//! One file per area, each thin: `realize`, `recover`, `structure`, `identify`, `batch`, `time`;
+//! One file per area, each thin: `realize`, `recover`, `hessenberg`, `structure`, `identify`, `batch`, `time`;
 //! the shared conversions (`convert`: the one `(a, b, c, d)` model argument, result arrays,
 //! exact data) and the error mapping and GIL release (`errors`).
 
@@ -15,6 +15,7 @@ mod batch;
 mod convert;
 mod errors;
 mod forms;
+mod hessenberg;
 mod identify;
 mod parametric;
 mod realize;
@@ -69,6 +70,23 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     // batch
     m.add_function(wrap_pyfunction!(batch::realize_batch, m)?)?;
     m.add_function(wrap_pyfunction!(batch::transfer_function_batch, m)?)?;
+    // hessenberg route, batch methods
+    m.add_function(wrap_pyfunction!(
+        hessenberg::characteristic_polynomial_hessenberg,
+        m
+    )?)?;
+    m.add_function(wrap_pyfunction!(
+        hessenberg::transfer_function_hessenberg,
+        m
+    )?)?;
+    m.add_function(wrap_pyfunction!(
+        hessenberg::transfer_function_batch_method,
+        m
+    )?)?;
+    m.add_function(wrap_pyfunction!(
+        hessenberg::transfer_function_batch_hessenberg,
+        m
+    )?)?;
     // time base
     m.add_function(wrap_pyfunction!(time::convert_time_base, m)?)?;
     m.add_function(wrap_pyfunction!(time::convert_time_base_exact, m)?)?;

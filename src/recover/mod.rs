@@ -21,6 +21,7 @@ pub mod certified;
 pub mod double_double;
 pub mod dyadic;
 pub mod faddeev_leverrier;
+pub mod hessenberg;
 pub mod modular;
 pub mod rational;
 
@@ -52,6 +53,16 @@ fn check_recursion_order(n: usize) -> Result<()> {
     Ok(())
 }
 
+/// The order limit of the single calls, for the batch routes.
+pub fn check_order_for_batch(n: usize) -> Result<()> {
+    check_recursion_order(n)
+}
+
+/// A square, finite `a` (the check of the float entry points).
+pub fn check_square_finite(a: &Matrix<f64>) -> Result<()> {
+    check_square(a)
+}
+
 /// `Method::Auto` asked for adjugates when the double-double bound does not certify and the
 /// exact fallback would take too long: refuse rather than return an uncertified value silently.
 fn uncertified(n: usize) -> ModelError {
@@ -77,9 +88,12 @@ pub enum Method {
     Recursion,
     /// Exact recursion on the float data, each result correctly rounded.
     Exact,
+    /// Orthogonal Hessenberg reduction and La Budde's recurrence ([`hessenberg`]): backward
+    /// stable, O(n³), with an a-posteriori error estimate (not a bound); no adjugates.
+    Hessenberg,
 }
 
-pub const METHOD_NAMES: &str = "'auto', 'recursion', 'exact'";
+pub const METHOD_NAMES: &str = "'auto', 'recursion', 'exact', 'hessenberg'";
 
 impl FromStr for Method {
     type Err = ModelError;
@@ -88,6 +102,7 @@ impl FromStr for Method {
             "auto" => Ok(Method::Auto),
             "recursion" => Ok(Method::Recursion),
             "exact" => Ok(Method::Exact),
+            "hessenberg" => Ok(Method::Hessenberg),
             other => Err(ModelError::BadOption {
                 arg: "method",
                 found: other.into(),
@@ -104,6 +119,7 @@ pub struct Accuracy {
     pub method: &'static str,
     /// Bound on the error of every returned coefficient relative to its exact value (first
     /// order in the unit roundoff for the recursions; ∞ where nothing can be certified).
+    /// For `Method::Hessenberg` the largest relative a-posteriori estimate (not a bound).
     pub relative_error_bound: f64,
 }
 
@@ -116,6 +132,16 @@ fn unchecked(bound: f64) -> Accuracy {
     Accuracy {
         method: "float64 recursion (unchecked)",
         relative_error_bound: bound,
+    }
+}
+
+/// The name under which the Hessenberg route reports itself.
+pub const HESSENBERG_METHOD: &str = "hessenberg reduction, La Budde recurrence (estimate)";
+
+fn hessenberg_accuracy(worst_estimate: f64) -> Accuracy {
+    Accuracy {
+        method: HESSENBERG_METHOD,
+        relative_error_bound: worst_estimate,
     }
 }
 
@@ -179,6 +205,17 @@ pub fn faddeev_leverrier_f64(
     check_square(a)?;
     let n = a.rows();
     check_recursion_order(n)?;
+    if method == Method::Hessenberg {
+        if with_adjugates {
+            return Err(ModelError::BadValue {
+                arg: "method",
+                detail: "the 'hessenberg' method gives no adjugates; use 'auto' or 'exact'".into(),
+            });
+        }
+        let (coeffs, est) = hessenberg::characteristic_polynomial(a.as_slice(), n)?;
+        let worst = hessenberg::worst_relative_estimate(&coeffs, &est);
+        return Ok((coeffs, Vec::new(), hessenberg_accuracy(worst)));
+    }
     if method != Method::Exact {
         if let Some((seq, acc)) = fast_path(a, method, with_adjugates, None)? {
             return Ok((seq.coeffs, split_adjugates(seq.adjugates, n), acc));
@@ -201,6 +238,11 @@ pub fn transfer_function_f64(
     }
     let n = ss.n_states();
     check_recursion_order(n)?;
+    if method == Method::Hessenberg {
+        let r = hessenberg::transfer_function(ss)?;
+        let acc = hessenberg_accuracy(r.worst_relative_estimate());
+        return Ok((r.num, r.den, acc));
+    }
     if method != Method::Exact {
         if let Some((seq, acc)) = fast_path(&ss.a, method, false, Some(ss))? {
             return Ok((seq.numerator, seq.coeffs, acc));

@@ -10,6 +10,8 @@ import numpy as np
 
 from .. import _core
 from .._base import validate as v
+from .._compute import hessenberg as compute_hessenberg
+from .._compute.recover import METHODS
 from .._core import ModelError
 from .realize import FORMS
 
@@ -116,7 +118,13 @@ def realize_batch(
 
 
 def transfer_function_batch(
-    a: Any, b: Any, c: Any, d: Any, *, progress: Optional[Callable[[int, int], None]] = None
+    a: Any,
+    b: Any,
+    c: Any,
+    d: Any,
+    *,
+    method: str = "auto",
+    progress: Optional[Callable[[int, int], None]] = None,
 ) -> Tuple[np.ndarray, np.ndarray]:
     r"""Transfer matrices of N state-space models of one shape in one call.
 
@@ -126,6 +134,10 @@ def transfer_function_batch(
     b : (N, n, m) array_like
     c : (N, p, n) array_like
     d : (N, p, m) array_like
+    method : {"auto", "recursion", "exact", "hessenberg"}
+        As in :func:`statewright.transfer_function`. ``"hessenberg"`` (backward stable,
+        O(n^3), not correctly rounded) runs on one scratch space per thread, nothing
+        allocated per model.
     progress : callable, optional
         ``progress(done, total)``, as in :func:`realize_batch`.
 
@@ -133,8 +145,9 @@ def transfer_function_batch(
     -------
     num : (N, p, m, n + 1) ndarray
     den : (N, n + 1) ndarray
-        ``(num[i], den[i])`` equals ``transfer_function(a[i], b[i], c[i], d[i])`` (default
-        ``method="auto"``: certified double-double recursion, exact fallback) bit for bit.
+        ``(num[i], den[i])`` equals ``transfer_function(a[i], b[i], c[i], d[i], method=method)``
+        (default ``method="auto"``: certified double-double recursion, exact fallback) bit
+        for bit.
 
     Raises
     ------
@@ -156,6 +169,12 @@ def transfer_function_batch(
         v.float_stack(x, name, 3, shape)
         for x, name, shape in zip((a, b, c, d), "abcd", ("(N, n, n)", "(N, n, m)", "(N, p, n)", "(N, p, m)"))
     ]
+    method = v.check_option(method, "method", METHODS)
+    if method == "auto":
+        fn: Callable[..., Tuple[np.ndarray, np.ndarray]] = _core.transfer_function_batch
+        extra: Tuple[Any, ...] = ()
+    else:
+        fn, extra = compute_hessenberg.transfer_function_batch_method, (method,)
     if progress is not None and len({m.shape[0] for m in mats}) == 1:
-        return _in_chunks(_core.transfer_function_batch, tuple(mats), (), progress)  # type: ignore[return-value]
-    return _core.transfer_function_batch(*mats)
+        return _in_chunks(fn, tuple(mats), extra, progress)  # type: ignore[return-value]
+    return fn(*mats, *extra)

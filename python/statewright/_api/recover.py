@@ -9,6 +9,7 @@ import numpy as np
 
 from .. import _core
 from .._base import validate as v
+from .._compute import hessenberg as compute_hessenberg
 from .._compute import recover as compute
 from .._compute.recover import METHODS
 
@@ -32,7 +33,8 @@ def faddeev_leverrier(a: Any, *, exact: bool = False, method: str = "auto") -> T
     exact : bool
         Exact rational input and output (object arrays of Fractions).
     method : {"auto", "recursion", "exact"}
-        For float data (see :func:`transfer_function` for the accuracy of each). Here the
+        For float data (see :func:`transfer_function` for the accuracy of each;
+        ``"hessenberg"`` gives no adjugates and is refused here). Here the
         exact evaluation runs the recursion in big integers (the adjugates need it), so
         with ``method="auto"`` an order above 64 whose double-double result cannot be
         certified raises ModelError rather than take minutes.
@@ -75,7 +77,9 @@ def characteristic_polynomial(a: Any, *, exact: bool = False, method: str = "aut
     result when its running error bound certifies every coefficient to 2^-56 relative (so
     the float64 result is within 0.625 ulp), and otherwise the exact characteristic
     polynomial of the float data (multi-modular Hessenberg method) rounded once, every
-    coefficient correctly rounded. See :func:`transfer_function`.
+    coefficient correctly rounded. ``method="hessenberg"``: orthogonal Hessenberg
+    reduction and La Budde's recurrence, backward stable, O(n^3), not correctly rounded
+    (see :func:`transfer_function`). ``method="recursion"``: plain float64.
 
     Examples
     --------
@@ -89,6 +93,8 @@ def characteristic_polynomial(a: Any, *, exact: bool = False, method: str = "aut
         return v.fraction_array(exact_coeffs, (am.shape[0] + 1,))
     method = v.check_option(method, "method", METHODS)
     am = v.require_square(v.float_matrix(a, "a"))
+    if method == "hessenberg":
+        return compute_hessenberg.characteristic_polynomial_hessenberg(am)[0]
     coeffs, _, _ = _core.faddeev_leverrier_float(am, method, False)
     return coeffs
 
@@ -147,7 +153,7 @@ def transfer_function(
         ``(n, n)``, ``(n, m)``, ``(p, n)``, ``(p, m)``.
     exact : bool
         Exact rational data in and out (object arrays of Fractions).
-    method : {"auto", "recursion", "exact"}
+    method : {"auto", "recursion", "exact", "hessenberg"}
         How float data are evaluated:
 
         * ``"auto"`` (default): the recursion in double-double arithmetic carrying a
@@ -163,10 +169,24 @@ def transfer_function(
         * ``"recursion"``: the plain float64 recursion, unchecked. Accurate for small,
           well-scaled models; catastrophically inaccurate when eigenvalue magnitudes are
           spread (relative errors of 1e-1 at n = 8 over four decades, far worse at n = 20).
+        * ``"hessenberg"``: for each input, an orthogonal Householder reduction of A to
+          upper Hessenberg form with that input's column of B along the first axis, La
+          Budde's recurrence for the characteristic polynomials of all trailing blocks, and
+          the numerators from the first column of the Hessenberg adjugate (products of
+          subdiagonal entries times those polynomials). Backward stable, O(n^3) per input,
+          no growth with the bit length of the data; not correctly rounded: like every
+          backward-stable route, small coefficients of models with spread eigenvalues lose
+          relative accuracy. Comes with an a-posteriori estimate (not a bound) of every
+          coefficient's error.
     return_accuracy : bool
         Also return ``{"method": ..., "relative_error_bound": ...}`` saying which
         evaluation was used and its bound on the relative error of every coefficient
-        (None when nothing is certified, as can happen with ``method="recursion"``).
+        (None when nothing is certified, as can happen with ``method="recursion"`` and
+        always with ``"hessenberg"``). With ``method="hessenberg"`` the dictionary also has
+        ``"relative_error_estimate"`` (largest estimated relative error, None where an
+        estimate reaches its coefficient), ``"num_error_estimate"`` (p, m, n + 1) and
+        ``"den_error_estimate"`` (n + 1,): estimated absolute errors, first order in the
+        unit roundoff, of each coefficient.
 
     Returns
     -------
@@ -191,6 +211,10 @@ def transfer_function(
     >>> num, den = sw.transfer_function([[0, 1], [-2, -3]], [[0], [1]], [[3, 1]], [[0]])
     >>> num[0, 0], den
     (array([0., 1., 3.]), array([1., 3., 2.]))
+    >>> num, den, acc = sw.transfer_function([[0, 1], [-2, -3]], [[0], [1]], [[3, 1]], [[0]],
+    ...                                      method="hessenberg", return_accuracy=True)
+    >>> bool(np.allclose(den, [1, 3, 2])), acc["relative_error_estimate"] < 1e-13
+    (True, True)
     """
     if v.check_flag(exact, "exact"):
         mats = [v.exact_matrix(x, name) for x, name in zip((a, b, c, d), "abcd")]
@@ -200,7 +224,10 @@ def transfer_function(
             return result + ({"method": "exact rational arithmetic", "relative_error_bound": 0.0},)
         return result
     method = v.check_option(method, "method", METHODS)
-    num, den, accuracy = compute.transfer_function_float(*v.float_model(a, b, c, d), method)
+    if method == "hessenberg":
+        num, den, accuracy = compute_hessenberg.transfer_function_hessenberg(*v.float_model(a, b, c, d))
+    else:
+        num, den, accuracy = compute.transfer_function_float(*v.float_model(a, b, c, d), method)
     if v.check_flag(return_accuracy, "return_accuracy"):
         return num, den, accuracy
     return num, den

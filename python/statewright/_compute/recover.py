@@ -11,7 +11,7 @@ from .._base import validate as v
 
 __all__ = ["METHODS", "transfer_function_float", "transfer_function_exact"]
 
-METHODS = ("auto", "recursion", "exact")
+METHODS = ("auto", "recursion", "exact", "hessenberg")
 
 
 def transfer_function_float(
