@@ -1,7 +1,7 @@
 """Type stubs for the compiled core (the PyO3 binding layer). Private: use the functions
 re-exported by ``statewright``, which validate their input first."""
 
-from typing import Any, Dict, List, Optional, Sequence, Tuple, Union
+from typing import Any, Dict, List, Optional, Tuple, Union
 
 import numpy as np
 import numpy.typing as npt
@@ -103,7 +103,7 @@ def invariant_zeros_batch(a: _F64, b: _F64, c: _F64, d: _F64, tol: Optional[floa
 # parametric models, in the plain format of _base/symbolic.py: a polynomial is a list of
 # (exponents, numerator, denominator) terms, an entry a (numerator, denominator) pair of
 # polynomials, a matrix (rows, cols, entries row-major)
-_PlainPoly = List[Tuple[Sequence[int], int, int]]
+_PlainPoly = List[Tuple[Tuple[int, ...], int, int]]
 _PlainEntry = Tuple[_PlainPoly, _PlainPoly]
 _PlainMatrix = Tuple[int, int, List[_PlainEntry]]
 

@@ -70,7 +70,9 @@ def test_balanced_realization_meets_its_own_checks(case):
     assert info["balance_residual"] <= 1e-8
     if n:
         assert s[0] <= info["hinf_estimate"] * (1 + 1e-6) + info["hankel_accuracy"]
-    if r.n_states < n:
+    if r.n_states < n and np.any(s[r.n_states :] > info["hankel_accuracy"]):
+        # states whose Hankel singular values are resolved (above the stated accuracy) were
+        # discarded: the bound cannot be 0 (values at rounding level may be reported as 0)
         assert info["error_bound"] > 0
     hsv = attempt(sw.hankel_singular_values, a, b, c, discrete=discrete)
     if hsv is not FAILED:

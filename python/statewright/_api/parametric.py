@@ -131,4 +131,5 @@ def realize_parametric_expression(
             x[k // cols, k % cols] = domain.expression(e)
         arrays.append(x)
     v.check_model_shapes(*arrays)
-    return Realization._trusted(*arrays, info={"parameters": params})
+    a, b, c, d = arrays
+    return Realization._trusted(a, b, c, d, info={"parameters": params})

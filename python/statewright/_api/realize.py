@@ -8,6 +8,7 @@ from typing import Any, Optional
 from .. import _core
 from .._base import validate as v
 from .._compute import forms as _forms
+from .._core import ModelError
 from .._results.realization import Realization
 
 __all__ = ["realize", "FORMS"]
@@ -128,11 +129,11 @@ def realize(
     form = v.check_option(form, "form", FORMS)
     tol = v.tol(tol)
     if tol is not None and form != "jordan":
-        raise v.ModelError(f"tol: only form='jordan' takes a tolerance, not form={form!r}")
+        raise ModelError(f"tol: only form='jordan' takes a tolerance, not form={form!r}")
     if form == "jordan":
         if v.check_flag(exact, "exact"):
             if tol is not None:
-                raise v.ModelError("tol: the exact Jordan form factors exactly and takes no tolerance")
+                raise ModelError("tol: the exact Jordan form factors exactly and takes no tolerance")
             fa, fb, fc, fd, info = _forms.jordan_exact(v.exact_polynomial(num, "num"), v.exact_polynomial(den, "den"))
             return Realization._trusted(fa, fb, fc, fd, info)
         a, b, c, d, info = _forms.jordan_float(

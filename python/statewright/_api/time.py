@@ -40,9 +40,9 @@ def _convert(
         info = {"method": method, "sample_time": t}
         return Realization._trusted(*out, info, sample_time=t if forward else None)
     model = v.float_model(a, b, c, d)
-    t = tb.sample_time(sample_time)
-    out, info = compute.convert(model, t, method, prewarp, forward)
-    return Realization._trusted(*out, info, frozen=True, sample_time=t if forward else None)
+    seconds = tb.sample_time(sample_time)
+    out, info = compute.convert(model, seconds, method, prewarp, forward)
+    return Realization._trusted(*out, info, frozen=True, sample_time=seconds if forward else None)
 
 
 def to_discrete(

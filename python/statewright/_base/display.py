@@ -40,7 +40,7 @@ def latex_entry(x: Any) -> str:
     """One entry: a Fraction as ``\\frac``, a float to 6 significant digits with powers of
     ten written out, zero as 0."""
     if type(x).__module__.startswith("sympy"):  # the entries of a parametric realization
-        import sympy
+        import sympy  # type: ignore[import-untyped]
 
         return str(sympy.latex(x))
     if isinstance(x, Fraction):

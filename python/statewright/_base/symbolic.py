@@ -15,7 +15,7 @@ module imports nothing of statewright above ``_core``.
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Any, Iterable, List, Sequence, Tuple
+from typing import Any, Dict, Iterable, List, Sequence, Tuple
 
 import numpy as np
 
@@ -103,7 +103,7 @@ class _Converter:
         self.params = tuple(params)
         self.field = None
         if self.params:
-            from sympy.polys.fields import FracField
+            from sympy.polys.fields import FracField  # type: ignore[import-untyped]
 
             self.field = FracField(self.params, sympy.ZZ)
 
@@ -192,7 +192,7 @@ class ResultDomain:
         else:
             self.kind, self.domain = "field", sympy.ZZ.frac_field(*self.params)
 
-    def _dict(self, plain: Plain) -> dict:
+    def _dict(self, plain: Plain) -> Dict[Any, Any]:
         count = len(self.params)
         return {tuple(e) + (0,) * (count - len(e)): (p, q) for e, p, q in plain}
 
@@ -201,8 +201,8 @@ class ResultDomain:
         sympy = self.sympy
         num, den = entry
         if self.kind == "numbers":
-            n = sum(Fraction(p, q) for _, p, q in num)
-            d = sum(Fraction(p, q) for _, p, q in den)
+            n = sum((Fraction(p, q) for _, p, q in num), Fraction(0))
+            d = sum((Fraction(p, q) for _, p, q in den), Fraction(0))
             value = n / d
             return sympy.QQ(value.numerator, value.denominator)
         if self.kind == "field":

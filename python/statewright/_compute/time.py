@@ -38,7 +38,8 @@ def convert(
 
 def convert_exact(model: Arrays4, sample_time: Fraction, method: str, forward: bool) -> Arrays4:
     """The exact conversion of an exact model (object arrays of Fractions)."""
-    core_in = tuple(v.to_core(x) for x in model)
+    a, b, c, d = (v.to_core(x) for x in model)
+    core_in = (a, b, c, d)
     pair = (sample_time.numerator, sample_time.denominator)
     out = _core.convert_time_base_exact(core_in, pair, method, forward)
     return tuple(v.fraction_array(x, (x[0], x[1])) for x in out)  # type: ignore[return-value]

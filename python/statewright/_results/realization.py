@@ -431,9 +431,9 @@ class Realization:
             t = tb.exact_sample_time(sample_time)
             out = time_compute.convert_exact(tuple(self), t, method, forward)  # type: ignore[arg-type]
             return Realization._trusted(*out, {"method": method, "sample_time": t}, sample_time=t if forward else None)
-        t = tb.sample_time(sample_time)
-        out, info = time_compute.convert(self._float(), t, method, prewarp, forward)
-        return Realization._trusted(*out, info, frozen=True, sample_time=t if forward else None)
+        seconds = tb.sample_time(sample_time)
+        out, info = time_compute.convert(self._float(), seconds, method, prewarp, forward)
+        return Realization._trusted(*out, info, frozen=True, sample_time=seconds if forward else None)
 
     def zeros(self, *, tol: Optional[float] = None) -> np.ndarray:
         """:func:`statewright.invariant_zeros` of this realization."""

@@ -9,7 +9,8 @@ from typing import TYPE_CHECKING, Any, List, Mapping, Optional, Tuple
 import numpy as np
 
 from .._base.display import decomposition_latex, staircase_latex
-from .._base.validate import ModelError, frozen
+from .._base.validate import frozen
+from .._core import ModelError
 
 if TYPE_CHECKING:  # pragma: no cover - annotations only; never imported at run time
     from .realization import Realization
