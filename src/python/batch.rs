@@ -1,6 +1,6 @@
 //! Bindings of the batch functions (rayon in the core, the GIL released for the whole batch).
 
-use super::convert::{array_nd, Quad};
+use super::convert::{array_nd, batch_dims, owned, Quad};
 use super::errors::{run, to_py};
 use super::realize::parse_form;
 use crate::batch;
@@ -47,32 +47,8 @@ pub(crate) fn transfer_function_batch<'py>(
     c: PyReadonlyArray3<'py, f64>,
     d: PyReadonlyArray3<'py, f64>,
 ) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>)> {
-    let (count, n, n2) = a.as_array().dim();
-    let (cb, nb, m) = b.as_array().dim();
-    let (cc, p, nc) = c.as_array().dim();
-    let (cd, pd, md) = d.as_array().dim();
-    let shape_err = |arg: &'static str, expected: String, found: (usize, usize, usize)| {
-        Err(to_py(CoreError::Shape {
-            arg,
-            expected,
-            found: format!("shape {found:?}"),
-        }))
-    };
-    if n2 != n {
-        return shape_err("a", "shape (N, n, n)".to_string(), (count, n, n2));
-    }
-    if (cb, nb) != (count, n) {
-        return shape_err("b", format!("shape ({count}, {n}, m)"), (cb, nb, m));
-    }
-    if (cc, nc) != (count, n) {
-        return shape_err("c", format!("shape ({count}, p, {n})"), (cc, p, nc));
-    }
-    if (cd, pd, md) != (count, p, m) {
-        return shape_err("d", format!("shape ({count}, {p}, {m})"), (cd, pd, md));
-    }
-    let own =
-        |x: &PyReadonlyArray3<'py, f64>| -> Vec<f64> { x.as_array().iter().copied().collect() };
-    let (av, bv, cv, dv) = (own(&a), own(&b), own(&c), own(&d));
+    let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
+    let (av, bv, cv, dv) = (owned(&a), owned(&b), owned(&c), owned(&d));
     let t = run(py, move || {
         batch::transfer_function_batch(&av, &bv, &cv, &dv, count, n, m, p)
     })?;

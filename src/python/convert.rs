@@ -8,7 +8,9 @@ use crate::state_space::StateSpace;
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
-use numpy::{ndarray, PyArray, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
+use numpy::{
+    ndarray, PyArray, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3, PyUntypedArrayMethods,
+};
 use pyo3::prelude::*;
 
 /// The four arrays of a model, passed from Python as one tuple `(a, b, c, d)`: the one
@@ -159,4 +161,48 @@ pub(crate) fn exact_quad(ss: StateSpace<BigRational>) -> (ExactOut, ExactOut, Ex
         exact_out(ss.c),
         exact_out(ss.d),
     )
+}
+
+// ---- stacks of models (the batch functions)
+
+/// `(count, n, m, p)` of a stack of models `a` (N, n, n), `b` (N, n, m), `c` (N, p, n),
+/// `d` (N, p, m), or the `Shape` error naming the first array that does not fit.
+pub(crate) fn batch_dims(
+    a: &PyReadonlyArray3<'_, f64>,
+    b: &PyReadonlyArray3<'_, f64>,
+    c: &PyReadonlyArray3<'_, f64>,
+    d: &PyReadonlyArray3<'_, f64>,
+) -> PyResult<(usize, usize, usize, usize)> {
+    let (count, n, n2) = a.as_array().dim();
+    let (cb, nb, m) = b.as_array().dim();
+    let (cc, p, nc) = c.as_array().dim();
+    let (cd, pd, md) = d.as_array().dim();
+    let fail = |arg: &'static str, expected: String, found: (usize, usize, usize)| {
+        Err(to_py(CoreError::Shape {
+            arg,
+            expected,
+            found: format!("shape {found:?}"),
+        }))
+    };
+    if n2 != n {
+        return fail("a", "shape (N, n, n)".to_string(), (count, n, n2));
+    }
+    if (cb, nb) != (count, n) {
+        return fail("b", format!("shape ({count}, {n}, m)"), (cb, nb, m));
+    }
+    if (cc, nc) != (count, n) {
+        return fail("c", format!("shape ({count}, p, {n})"), (cc, p, nc));
+    }
+    if (cd, pd, md) != (count, p, m) {
+        return fail("d", format!("shape ({count}, {p}, {m})"), (cd, pd, md));
+    }
+    Ok((count, n, m, p))
+}
+
+/// An owned row-major copy of a stack (no copy beyond one when it is contiguous).
+pub(crate) fn owned(x: &PyReadonlyArray3<'_, f64>) -> Vec<f64> {
+    match x.as_slice() {
+        Ok(s) => s.to_vec(),
+        Err(_) => x.as_array().iter().copied().collect(),
+    }
 }

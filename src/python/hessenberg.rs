@@ -1,10 +1,9 @@
 //! Bindings of the Hessenberg route (orthogonal reduction, La Budde's recurrence) and of
 //! the batch transfer functions with a recovery method.
 
-use super::convert::{array_nd, matrix_from, model_from, ModelIn};
+use super::convert::{array_nd, batch_dims, matrix_from, model_from, owned, ModelIn};
 use super::errors::{run, to_py};
 use crate::batch;
-use crate::error::ModelError as CoreError;
 use crate::recover::{self, hessenberg, Method};
 use numpy::{PyReadonlyArray2, PyReadonlyArray3};
 use pyo3::prelude::*;
@@ -56,45 +55,6 @@ pub(crate) fn transfer_function_hessenberg<'py>(
         array_nd(py, r.num_estimate, &[p, m, n + 1])?,
         array_nd(py, r.den_estimate, &[n + 1])?,
     ))
-}
-
-fn batch_dims(
-    a: &PyReadonlyArray3<'_, f64>,
-    b: &PyReadonlyArray3<'_, f64>,
-    c: &PyReadonlyArray3<'_, f64>,
-    d: &PyReadonlyArray3<'_, f64>,
-) -> PyResult<(usize, usize, usize, usize)> {
-    let (count, n, n2) = a.as_array().dim();
-    let (cb, nb, m) = b.as_array().dim();
-    let (cc, p, nc) = c.as_array().dim();
-    let (cd, pd, md) = d.as_array().dim();
-    let fail = |arg: &'static str, expected: String, found: (usize, usize, usize)| {
-        Err(to_py(CoreError::Shape {
-            arg,
-            expected,
-            found: format!("shape {found:?}"),
-        }))
-    };
-    if n2 != n {
-        return fail("a", "shape (N, n, n)".to_string(), (count, n, n2));
-    }
-    if (cb, nb) != (count, n) {
-        return fail("b", format!("shape ({count}, {n}, m)"), (cb, nb, m));
-    }
-    if (cc, nc) != (count, n) {
-        return fail("c", format!("shape ({count}, p, {n})"), (cc, p, nc));
-    }
-    if (cd, pd, md) != (count, p, m) {
-        return fail("d", format!("shape ({count}, {p}, {m})"), (cd, pd, md));
-    }
-    Ok((count, n, m, p))
-}
-
-fn owned(x: &PyReadonlyArray3<'_, f64>) -> Vec<f64> {
-    match x.as_slice() {
-        Ok(s) => s.to_vec(),
-        Err(_) => x.as_array().iter().copied().collect(),
-    }
 }
 
 /// `(num, den)` of a batch by any float method.

@@ -1,10 +1,11 @@
 //! Bindings of the zeros and gains: invariant / transmission zeros, normal rank, DC gain,
 //! zeros-poles-gain in and out, and the zeros batch.
 
-use super::convert::{array2, array_nd, model_from, quad, vector_from, ModelIn, Quad};
-use super::errors::{run, to_py};
+use super::convert::{
+    array2, array_nd, batch_dims, model_from, owned, quad, vector_from, ModelIn, Quad,
+};
+use super::errors::run;
 use super::realize::parse_form;
-use crate::error::ModelError as CoreError;
 use crate::zeros::batch::{invariant_zeros_batch as core_batch, BatchShape};
 use crate::zeros::{dc_gain as core_dc, pencil, zeros_poles_gain as zpk};
 use numpy::{PyReadonlyArray1, PyReadonlyArray3};
@@ -120,32 +121,8 @@ pub(crate) fn invariant_zeros_batch<'py>(
     d: PyReadonlyArray3<'py, f64>,
     tol: Option<f64>,
 ) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>, Vec<usize>)> {
-    let (count, n, n2) = a.as_array().dim();
-    let (cb, nb, m) = b.as_array().dim();
-    let (cc, p, nc) = c.as_array().dim();
-    let (cd, pd, md) = d.as_array().dim();
-    let shape_err = |arg: &'static str, expected: String, found: (usize, usize, usize)| {
-        Err(to_py(CoreError::Shape {
-            arg,
-            expected,
-            found: format!("shape {found:?}"),
-        }))
-    };
-    if n2 != n {
-        return shape_err("a", "shape (N, n, n)".to_string(), (count, n, n2));
-    }
-    if (cb, nb) != (count, n) {
-        return shape_err("b", format!("shape ({count}, {n}, m)"), (cb, nb, m));
-    }
-    if (cc, nc) != (count, n) {
-        return shape_err("c", format!("shape ({count}, p, {n})"), (cc, p, nc));
-    }
-    if (cd, pd, md) != (count, p, m) {
-        return shape_err("d", format!("shape ({count}, {p}, {m})"), (cd, pd, md));
-    }
-    let own =
-        |x: &PyReadonlyArray3<'py, f64>| -> Vec<f64> { x.as_array().iter().copied().collect() };
-    let (av, bv, cv, dv) = (own(&a), own(&b), own(&c), own(&d));
+    let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
+    let (av, bv, cv, dv) = (owned(&a), owned(&b), owned(&c), owned(&d));
     let shape = BatchShape { count, n, m, p };
     let z = run(py, move || core_batch(&av, &bv, &cv, &dv, shape, tol))?;
     let width = n.max(1);
