@@ -45,6 +45,7 @@
 
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
+use crate::recover::double_double::{self, fast_two_sum, two_sum};
 use faer::prelude::*;
 
 // ---------------------------------------------------------------------------------------
@@ -58,32 +59,11 @@ pub struct Dd {
     pub lo: f64,
 }
 
-#[inline(always)]
-fn two_sum(a: f64, b: f64) -> (f64, f64) {
-    let s = a + b;
-    let bb = s - a;
-    (s, (a - (s - bb)) + (b - bb))
-}
-
-#[inline(always)]
-fn fast_two_sum(a: f64, b: f64) -> (f64, f64) {
-    let s = a + b;
-    (s, b - (s - a))
-}
-
-#[inline(always)]
-fn split(a: f64) -> (f64, f64) {
-    let c = 134_217_729.0 * a; // 2^27 + 1
-    let hi = c - (c - a);
-    (hi, a - hi)
-}
-
+/// Dekker's product without FMA (the same splitting as the recovery's double-double type,
+/// so both give the same bits on every machine).
 #[inline(always)]
 fn two_prod(a: f64, b: f64) -> (f64, f64) {
-    let p = a * b;
-    let (ah, al) = split(a);
-    let (bh, bl) = split(b);
-    (p, ((ah * bh - p) + ah * bl + al * bh) + al * bl)
+    double_double::two_prod::<false>(a, b)
 }
 
 impl Dd {

@@ -28,27 +28,27 @@ pub type DoubleDoubleFma = Dd<true>;
 pub const UNIT_ROUNDOFF: f64 = 7.888609052210118e-31;
 
 #[inline(always)]
-fn two_sum(a: f64, b: f64) -> (f64, f64) {
+pub(crate) fn two_sum(a: f64, b: f64) -> (f64, f64) {
     let s = a + b;
     let bb = s - a;
     (s, (a - (s - bb)) + (b - bb))
 }
 
 #[inline(always)]
-fn fast_two_sum(a: f64, b: f64) -> (f64, f64) {
+pub(crate) fn fast_two_sum(a: f64, b: f64) -> (f64, f64) {
     let s = a + b;
     (s, b - (s - a))
 }
 
 #[inline(always)]
-fn split(a: f64) -> (f64, f64) {
+pub(crate) fn split(a: f64) -> (f64, f64) {
     let c = 134_217_729.0 * a; // 2^27 + 1
     let hi = c - (c - a);
     (hi, a - hi)
 }
 
 #[inline(always)]
-fn two_prod<const FMA: bool>(a: f64, b: f64) -> (f64, f64) {
+pub(crate) fn two_prod<const FMA: bool>(a: f64, b: f64) -> (f64, f64) {
     let p = a * b;
     if FMA {
         (p, a.mul_add(b, -p))
