@@ -289,9 +289,9 @@ pub fn parametric_transfer_function(
             format!(
                 "over a common denominator the entries of a have degrees {degrees:?} in the parameters \
                  (total degree {total}), so a coefficient may hold up to {largest:.3e} terms and the \
-                 recursion an estimated {seconds:.0} s, beyond the budget of \
-                 {PARAMETRIC_TIME_BUDGET_SECONDS:.0} s; fewer parameters, or numbers substituted for \
-                 some of them, stay within it"
+                 recursion an estimated {seconds:.0} s (an upper bound), beyond ten times the \
+                 budget of {PARAMETRIC_TIME_BUDGET_SECONDS:.0} s; fewer parameters, or numbers \
+                 substituted for some of them, stay within it"
             ),
         ));
     }
