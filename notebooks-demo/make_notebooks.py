@@ -23,6 +23,8 @@ SETUP = (
 
 def _notebook(cells: list) -> nbformat.NotebookNode:
     nb = new_notebook(cells=cells)
+    for i, cell in enumerate(nb.cells):
+        cell.id = f"cell-{i:02d}"  # stable ids: regenerating an unchanged notebook changes no byte
     nb.metadata["kernelspec"] = {
         "name": "python3",
         "display_name": "Python 3",

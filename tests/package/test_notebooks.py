@@ -53,6 +53,8 @@ def test_stored_notebooks_are_the_generated_ones():
             f"{name} is out of date: run python notebooks-demo/make_notebooks.py"
         )
         assert all(not c.get("outputs") for c in stored.cells if c.cell_type == "code"), "stored without outputs"
+        # cell ids are stable, so the stored file is byte for byte what the script writes
+        assert (HERE / name).read_text() == nbformat.writes(generated) + "\n", f"{name}: regenerate it"
 
 
 @pytest.mark.parametrize("path", NOTEBOOKS, ids=[p.name for p in NOTEBOOKS])
