@@ -59,26 +59,83 @@ pub fn gcd(a: &Polynomial, b: &Polynomial) -> Polynomial {
         return monomial_gcd(b, a);
     }
     let vars = a.variables_used().max(b.variables_used());
-    // A variable in one argument only: replace that argument by its content in it.
-    for v in 0..vars {
-        let (da, db) = (a.degree_in(v), b.degree_in(v));
-        if da > 0 && db == 0 {
-            return gcd(&content_in(a, v), b);
-        }
-        if db > 0 && da == 0 {
-            return gcd(a, &content_in(b, v));
-        }
+    // Variables in one argument only: the GCD is free of them, so it is the GCD of the
+    // other argument with every coefficient of this one as a polynomial in them.
+    let only_a: Vec<usize> = (0..vars)
+        .filter(|&v| a.degree_in(v) > 0 && b.degree_in(v) == 0)
+        .collect();
+    if !only_a.is_empty() {
+        return gcd_with_coefficients(b, a, &only_a);
+    }
+    let only_b: Vec<usize> = (0..vars)
+        .filter(|&v| b.degree_in(v) > 0 && a.degree_in(v) == 0)
+        .collect();
+    if !only_b.is_empty() {
+        return gcd_with_coefficients(a, b, &only_b);
     }
     // Every variable occurs in both: recurse on the one of smallest degree.
     let v = (0..vars)
         .filter(|&v| a.degree_in(v) > 0)
         .min_by_key(|&v| a.degree_in(v).max(b.degree_in(v)))
         .expect("a is not constant");
-    let (ca, cb) = (content_in(a, v), content_in(b, v));
-    let pa = a.try_div(&ca).expect("content divides");
-    let pb = b.try_div(&cb).expect("content divides");
-    let g = primitive_sequence_end(pa, pb, v);
-    normalized(g.mul(&gcd(&ca, &cb)))
+    // gcd(a, b) = gcd(cont a, cont b) · gcd(pp a, pp b) (Gauss's lemma). Only the smaller
+    // argument is split: gcd(big, pp small) = gcd(pp big, pp small) because pp small has no
+    // divisor free of x_v, and the content of the GCD is gcd(cont small, every coefficient
+    // of big), stopping at 1, so big's own content is never computed.
+    let (big, small) = if a.term_count() >= b.term_count() {
+        (a, b)
+    } else {
+        (b, a)
+    };
+    let content_small = content_in(small, v);
+    let primitive_small = small.try_div(&content_small).expect("content divides");
+    let mut content = content_small;
+    for c in big.coefficients_in(v) {
+        if content.is_one() {
+            break;
+        }
+        if !c.is_zero() {
+            content = gcd(&content, &c);
+        }
+    }
+    let g = primitive_sequence_end(big.clone(), primitive_small, v);
+    let g = g.try_div(&content_in(&g, v)).expect("content divides");
+    normalized(g.mul(&content))
+}
+
+/// `gcd(small, big)` where `vars` occur in `big` only: `gcd(small, c_1, c_2, ...)` over the
+/// coefficients `c_e` of `big` as a polynomial in `vars` (each free of them), smallest
+/// first. The running GCD divides `small`, so every step is a GCD with a small polynomial,
+/// and the loop stops once it is 1: the lowest-terms step of the parametric results meets
+/// large numerators against small denominator factors, where computing the numerator's
+/// full content first would cost GCDs among its large coefficients.
+fn gcd_with_coefficients(small: &Polynomial, big: &Polynomial, vars: &[usize]) -> Polynomial {
+    let mut groups: std::collections::HashMap<Vec<u32>, Vec<(Vec<u32>, num_bigint::BigInt)>> =
+        std::collections::HashMap::new();
+    for (e, c) in big.terms() {
+        let key: Vec<u32> = vars
+            .iter()
+            .map(|&v| e.get(v).copied().unwrap_or(0))
+            .collect();
+        let mut rest = e.clone();
+        for &v in vars {
+            if v < rest.len() {
+                rest[v] = 0;
+            }
+        }
+        groups.entry(key).or_default().push((rest, c.clone()));
+    }
+    let mut coefficients: Vec<Polynomial> =
+        groups.into_values().map(Polynomial::from_terms).collect();
+    coefficients.sort_by_key(Polynomial::term_count);
+    let mut g = normalized(small.clone());
+    for c in &coefficients {
+        g = gcd(&g, c);
+        if g.is_one() {
+            break;
+        }
+    }
+    g
 }
 
 /// `gcd(c·x^e, p)`: the integer GCD times the smallest power of each variable in p.
@@ -203,6 +260,29 @@ mod tests {
         let a = g.pow(2).mul(&u).scale(&six);
         let b = g.mul(&w).scale(&BigInt::from(4));
         assert_eq!(gcd(&a, &b), g.scale(&BigInt::from(2)));
+    }
+
+    #[test]
+    fn large_argument_against_a_small_factor() {
+        // (identity) gcd((x0 + 1)·u, (x0 + 1)·w) = x0 + 1 for coprime u, w, where u is a dense
+        // polynomial in four variables (the shape of a parametric numerator against a
+        // denominator factor): the bounded-content path answers without u's full content.
+        let base = x(0).add(&k(1));
+        let mut u = k(1);
+        for i in 0..4 {
+            u = u.mul(
+                &x(i)
+                    .pow(3)
+                    .add(&x((i + 1) % 4).mul(&k(2 + i as i64)))
+                    .add(&k(7)),
+            );
+        }
+        assert!(u.term_count() > 50);
+        assert_eq!(gcd(&base.mul(&u), &base), base);
+        assert_eq!(gcd(&base, &base.mul(&u).scale(&BigInt::from(3))), base);
+        assert!(gcd(&u, &base.mul(&x(1).add(&k(5)))).is_one());
+        let c = x(1).mul(&x(2)).sub(&k(2));
+        assert_eq!(gcd(&c.mul(&u), &c.pow(2).mul(&x(3).add(&k(1)))), c);
     }
 
     #[test]

@@ -71,6 +71,19 @@ def test_substitution_gives_the_exact_transfer_function(n, parameters, m, p, den
     # (identity) substituting rationals for the parameters commutes with the recursion:
     # the result equals transfer_function(exact=True) of the substituted model.
     a, b, c, d, params = random_model(100 + n, n, parameters, m=m, p=p, density=density)
+    _check_substitution(a, b, c, d, params, n)
+
+
+@pytest.mark.parametrize("n, seed", [(4, 0), (4, 1), (5, 0), (5, 1), (6, 0), (6, 1)])
+def test_benchmark_models_substitute_exactly(n, seed):
+    # (identity) as above, on the models of benchmarks/bench_parametric.py (4 parameters,
+    # density 0.5). Order 5, seed 1 once spent minutes in the lowest-terms GCDs (a large
+    # numerator against a small denominator factor in other variables); a hang would stall here.
+    a, b, c, d, params = random_model(1000 * n + seed, n, 4, density=0.5)
+    _check_substitution(a, b, c, d, params, n)
+
+
+def _check_substitution(a, b, c, d, params, n):
     num, den = sw.parametric_transfer_function(a, b, c, d, S)
     for trial in range(3):
         point = random_point(7 * n + trial, params)
