@@ -14,7 +14,9 @@ CERTIFIED_TOLERANCE: float
 class ModelError(ValueError):
     """Bad input to a statewright routine, or a documented failure; the message names the argument."""
 
-def realize_float(num: _F64, den: _F64, form: str) -> Tuple[Tuple[_F64, _F64, _F64, _F64], Dict[str, float]]: ...
+def realize_float(
+    num: Union[_F64, List[float]], den: Union[_F64, List[float]], form: str
+) -> Tuple[Tuple[_F64, _F64, _F64, _F64], Dict[str, float]]: ...
 def realize_exact(num: _Exact, den: _Exact, form: str) -> Tuple[_Exact, _Exact, _Exact, _Exact]: ...
 def realize_jordan_float(
     num: _F64, den: _F64, tol: Optional[float]

@@ -11,28 +11,66 @@ use crate::realize::{self, Form};
 use num_rational::BigRational;
 use numpy::{ndarray, PyReadonlyArray1, PyReadonlyArray3};
 use pyo3::prelude::*;
-use pyo3::types::PyDict;
+use pyo3::types::{PyDict, PyList};
 
 pub(crate) fn parse_form(form: &str) -> PyResult<Form> {
     form.parse().map_err(to_py)
 }
 
+/// A float coefficient argument: a float64 array, or a plain list of numbers read without
+/// building an array first (the per-call fast path of small single calls; the Python layer
+/// sends a list only when it is non-empty and falls back to full validation on a TypeError).
+pub(crate) enum FloatCoefficients<'py> {
+    Array(PyReadonlyArray1<'py, f64>),
+    List(Vec<f64>),
+}
+
+impl<'py> FloatCoefficients<'py> {
+    /// A list is checked for first and read item by item (a failed array conversion would
+    /// cost an exception object per call); anything else must be a float64 array.
+    fn read(x: &Bound<'py, PyAny>) -> PyResult<Self> {
+        if let Ok(list) = x.cast::<PyList>() {
+            let mut values = Vec::with_capacity(list.len());
+            for item in list.iter() {
+                values.push(item.extract::<f64>()?);
+            }
+            return Ok(Self::List(values));
+        }
+        Ok(Self::Array(x.extract()?))
+    }
+
+    fn as_slice(&self) -> Option<&[f64]> {
+        match self {
+            Self::Array(a) => a.as_slice().ok(),
+            Self::List(v) => Some(v),
+        }
+    }
+
+    fn to_vec(&self) -> Vec<f64> {
+        match self {
+            Self::Array(a) => vector_from(a),
+            Self::List(v) => v.clone(),
+        }
+    }
+}
+
 #[pyfunction]
 pub(crate) fn realize_float<'py>(
     py: Python<'py>,
-    num: PyReadonlyArray1<'py, f64>,
-    den: PyReadonlyArray1<'py, f64>,
+    num: &Bound<'py, PyAny>,
+    den: &Bound<'py, PyAny>,
     form: &str,
 ) -> PyResult<(Quad<'py>, Option<Bound<'py, PyDict>>)> {
     let form = parse_form(form)?;
+    let (num, den) = (FloatCoefficients::read(num)?, FloatCoefficients::read(den)?);
     let small = match (num.as_slice(), den.as_slice()) {
-        (Ok(n), Ok(d)) if d.len() < SMALL_ORDER => Some((n, d)),
+        (Some(n), Some(d)) if d.len() < SMALL_ORDER => Some((n, d)),
         _ => None,
     };
     let (ss, modal) = if let Some((num, den)) = small {
         run_small(|| realize::realize_f64(num, den, form))?
     } else {
-        let (num, den) = (vector_from(&num), vector_from(&den));
+        let (num, den) = (num.to_vec(), den.to_vec());
         run(py, move || realize::realize_f64(&num, &den, form))?
     };
     let info = match modal {

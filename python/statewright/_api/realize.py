@@ -24,6 +24,10 @@ FORMS = (
     "jordan",
 )
 
+# The forms the core realizes from float coefficients alone (no tolerance, no info beyond
+# the modal form's): the ones the plain-list fast path of ``realize`` serves.
+_LIST_FORMS = frozenset(FORMS) - {"jordan"}
+
 
 def realize(
     num: Any, den: Any, form: str = "controllable_canonical", *, exact: bool = False, tol: Optional[float] = None
@@ -126,6 +130,26 @@ def realize(
     >>> [str(x) for x in j.c[0]], [str(x) for x in j.b[:, 0]]
     (['-1/4', '1/2', '1/4'], ['1', '0', '1'])
     """
+    if (
+        type(num) is list
+        and type(den) is list
+        and num
+        and den
+        and tol is None
+        and exact is False
+        and type(form) is str
+        and form in _LIST_FORMS
+    ):
+        # Fast path of single calls on plain lists: the core reads the lists itself and
+        # checks finiteness and shape; anything it cannot read as numbers (a TypeError, an
+        # int too large for a float) goes through the full validation below, which names
+        # the argument and the fault.
+        try:
+            (a, b, c, d), info = _core.realize_float(num, den, form)
+        except (TypeError, OverflowError):
+            pass
+        else:
+            return Realization._trusted(a, b, c, d, info, frozen=True)
     form = v.check_option(form, "form", FORMS)
     tol = v.tol(tol)
     if tol is not None and form != "jordan":
