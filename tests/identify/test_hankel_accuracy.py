@@ -101,9 +101,12 @@ def test_invariant_under_power_of_two_similarity(name, build, discrete, request)
     if name == "stiff chain" and discrete:
         request.applymarker(
             pytest.mark.xfail(
-                strict=True,
+                # not strict: the outcome depends on the machine (the matrix kernels chosen
+                # for the CPU round differently): within 0.03 of the allowance on one build
+                # machine, beyond it on another
+                strict=False,
                 reason="known weak: the discrete stiff chain's "
-                "smallest values move by more than 2x the stated accuracy",
+                "smallest values can move by more than 2x the stated accuracy",
             )
         )
     # D^-1 A D, D^-1 B, C D with D = diag(2^e) is exact in floating point and leaves the
