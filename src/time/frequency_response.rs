@@ -223,6 +223,15 @@ impl HessenbergModel {
     ) -> std::result::Result<(), EvaluationFailure> {
         let (n, m) = (self.n, self.m);
         let t = &self.h;
+        // |z| ≤ tol without a square root per row (tol² when it is a normal number).
+        let tol2 = tol * tol;
+        let at_pole = |z: Complex<f64>| {
+            if tol2.is_normal() {
+                z.norm_sqr() <= tol2
+            } else {
+                z.norm() <= tol
+            }
+        };
         w.y_re.copy_from_slice(&self.b);
         w.y_im.iter_mut().for_each(|v| *v = 0.0);
         for r in 0..m {
@@ -237,7 +246,7 @@ impl HessenbergModel {
                 };
                 if size == 1 {
                     let pivot = s - t[j * n + j];
-                    if pivot.norm() <= tol {
+                    if at_pole(pivot) {
                         return Err(EvaluationFailure::AtPole);
                     }
                     let x = rhs(j, xr, xi) / pivot;
@@ -249,7 +258,7 @@ impl HessenbergModel {
                     let a12 = Complex::new(-t[j * n + j + 1], 0.0);
                     let a21 = Complex::new(-t[(j + 1) * n + j], 0.0);
                     let a22 = s - t[(j + 1) * n + j + 1];
-                    let (x0, x1) = solve_2x2(a11, a12, a21, a22, r0, r1, tol)?;
+                    let (x0, x1) = solve_2x2(a11, a12, a21, a22, r0, r1, &at_pole)?;
                     xr[j] = x0.re;
                     xi[j] = x0.im;
                     xr[j + 1] = x1.re;
@@ -454,7 +463,7 @@ fn dot_real_complex(t: &[f64], xr: &[f64], xi: &[f64]) -> (f64, f64) {
 }
 
 /// The 2×2 complex system [[a11, a12], [a21, a22]] x = (r0, r1) by elimination with
-/// partial pivoting; `AtPole` when a pivot is at or below `tol`.
+/// partial pivoting; `AtPole` when a pivot is `at_pole`.
 fn solve_2x2(
     a11: Complex<f64>,
     a12: Complex<f64>,
@@ -462,20 +471,20 @@ fn solve_2x2(
     a22: Complex<f64>,
     r0: Complex<f64>,
     r1: Complex<f64>,
-    tol: f64,
+    at_pole: &impl Fn(Complex<f64>) -> bool,
 ) -> std::result::Result<(Complex<f64>, Complex<f64>), EvaluationFailure> {
-    let swap = a21.norm() > a11.norm();
+    let swap = a21.norm_sqr() > a11.norm_sqr();
     let (p11, p12, q21, q22, b0, b1) = if swap {
         (a21, a22, a11, a12, r1, r0)
     } else {
         (a11, a12, a21, a22, r0, r1)
     };
-    if p11.norm() <= tol {
+    if at_pole(p11) {
         return Err(EvaluationFailure::AtPole);
     }
     let l = q21 / p11;
     let u22 = q22 - l * p12;
-    if u22.norm() <= tol {
+    if at_pole(u22) {
         return Err(EvaluationFailure::AtPole);
     }
     let x1 = (b1 - l * b0) / u22;
