@@ -104,7 +104,7 @@ def test_exact_conversions(data, t, method):
     t=st.one_of(st.none(), sample_times()),
 )
 def test_frequency_response(data, w, t):
-    # 40 frequencies take the real Schur route for every order drawn (k >= 2n), fewer the
+    # 40 frequencies take the real Schur route for every order up to 13 (k >= 3n), fewer the
     # general Hessenberg route for the larger orders.
     (a, b, c, d), _ = data
     # attempt() overwrites the inputs after the call (the aliasing check): keep copies.

@@ -227,7 +227,7 @@ def frequency_response(
     frequency Gaussian elimination with partial pivoting on the Hessenberg matrix
     ``sI - H`` and back substitution (O(n^2) per frequency instead of O(n^3)); never
     through the transfer-function coefficients, whose values are ill-conditioned at high
-    orders. With at least 2n frequencies the Hessenberg matrix is carried on to the real
+    orders. With at least 3n frequencies the Hessenberg matrix is carried on to the real
     Schur form (Francis QR iteration; quasi-triangular, itself a Hessenberg matrix), whose
     Hessenberg solve is a back substitution with the real ``T`` and a 2x2 complex solve per
     complex pair: about a quarter of the arithmetic per frequency. Backward stable either
