@@ -7,12 +7,12 @@
 //! the poles and zeros spread over many decades. For a SISO model the zeros are also the
 //! roots of the numerator `N(s) = det [[sI − A, −B], [C, D]]` (identity: the Schur
 //! complement), a polynomial whose coefficients the recovery computes from the float data
-//! to within a certified relative bound (correctly rounded when the bound allows nothing
-//! else); roots of such coefficients are accurate *relative to their own size*.
+//! to within a certified relative bound; roots of such coefficients are accurate *relative to their own size*.
 //!
 //! # Method
-//! Numerator by [`crate::recover::transfer_function_f64`] (method `Auto`: the certified
-//! double-double Faddeev–LeVerrier recursion, else exact then rounded). Starting values:
+//! Numerator by the certified double-double Faddeev–LeVerrier recursion
+//! ([`crate::recover::certified::certified_double_double`]; no exact fallback, so the cost
+//! stays O(n⁴) in double-double whatever the entries). Starting values:
 //! the pencil zeros. Iteration: Aberth–Ehrlich steps `N_k / (1 − N_k Σ_{j≠k} 1/(z_k − z_j))`
 //! with `N_k = N(z_k)/N'(z_k)` evaluated by Horner's rule in complex double-double
 //! ([`crate::realize::roots::Polynomial`], the reversed polynomial beyond `|z| = 1`), at
@@ -32,7 +32,7 @@
 //! Numer. Math. 18 (1971) (double-double arithmetic).
 
 use crate::realize::roots::{Cdd, Polynomial};
-use crate::recover::{transfer_function_f64, Method};
+use crate::recover::certified::certified_double_double;
 use crate::state_space::StateSpace;
 
 /// Largest order refined.
@@ -62,12 +62,13 @@ pub fn refine_siso(ss: &StateSpace<f64>, zeros: &mut [(f64, f64)]) -> Refinement
     if ss.n_inputs() != 1 || ss.n_outputs() != 1 || zeros.is_empty() || n > MAX_ORDER {
         return skip;
     }
-    let Ok((num, _den, acc)) = transfer_function_f64(ss, Method::Auto) else {
-        return skip;
-    };
-    if acc.relative_error_bound > MAX_BOUND {
+    let seq = certified_double_double(ss.a.as_slice(), n, false, Some(ss));
+    // The bound of the recursion plus the final rounding to float64.
+    let bound = seq.worst_relative_bound() + f64::EPSILON / 2.0;
+    if !(seq.is_finite() && bound <= MAX_BOUND) {
         return skip;
     }
+    let num = seq.numerator;
     let lead = num.iter().take_while(|c| **c == 0.0).count();
     let num = &num[lead..];
     if num.len() != zeros.len() + 1 {
