@@ -7,12 +7,15 @@
 //! the poles and zeros spread over many decades. For a SISO model the zeros are also the
 //! roots of the numerator `N(s) = det [[sI − A, −B], [C, D]]` (identity: the Schur
 //! complement), a polynomial whose coefficients the recovery computes from the float data
-//! to within a certified relative bound; roots of such coefficients are accurate *relative to their own size*.
+//! to within a certified relative bound (or exactly, rounded once); roots of such coefficients are accurate *relative to their own size*.
 //!
 //! # Method
 //! Numerator by the certified double-double Faddeev–LeVerrier recursion
-//! ([`crate::recover::certified::certified_double_double`]; no exact fallback, so the cost
-//! stays O(n⁴) in double-double whatever the entries). Starting values:
+//! ([`crate::recover::certified::certified_double_double`]) when its bound is at most
+//! [`MAX_BOUND`], else by the exact recursion on the float data rounded once
+//! ([`crate::recover::transfer_function_f64`], `Method::Exact`) when the entries' binary
+//! exponents span at most [`MAX_EXACT_ENTRY_BITS`] bits (so its integers stay small), else
+//! no refinement. Starting values:
 //! the pencil zeros. Iteration: Aberth–Ehrlich steps `N_k / (1 − N_k Σ_{j≠k} 1/(z_k − z_j))`
 //! with `N_k = N(z_k)/N'(z_k)` evaluated by Horner's rule in complex double-double
 //! ([`crate::realize::roots::Polynomial`], the reversed polynomial beyond `|z| = 1`), at
@@ -33,12 +36,16 @@
 
 use crate::realize::roots::{Cdd, Polynomial};
 use crate::recover::certified::certified_double_double;
+use crate::recover::{transfer_function_f64, Method};
 use crate::state_space::StateSpace;
 
 /// Largest order refined.
 pub const MAX_ORDER: usize = 40;
 /// Largest certified relative error bound of the numerator coefficients accepted.
 pub const MAX_BOUND: f64 = 1e-14;
+/// Largest span of the entries' binary exponents (plus the 53 bits of a significand) for
+/// which the exact recursion is run when the certified one is not accurate enough.
+pub const MAX_EXACT_ENTRY_BITS: i32 = 200;
 /// Most Aberth sweeps.
 pub const MAX_SWEEPS: usize = 60;
 /// Largest relative move from a pencil zero accepted.
@@ -55,6 +62,26 @@ pub struct Refinement {
     pub last_correction: f64,
 }
 
+/// Bits of the integers the exact recursion starts from: the span of the binary exponents
+/// of the nonzero entries of A, B, C and D plus 53.
+fn entry_bits(ss: &StateSpace<f64>) -> i32 {
+    let (mut lo, mut hi) = (i32::MAX, i32::MIN);
+    for m in [&ss.a, &ss.b, &ss.c, &ss.d] {
+        for &v in m.as_slice() {
+            if v != 0.0 && v.is_finite() {
+                let e = v.abs().log2().floor() as i32;
+                lo = lo.min(e);
+                hi = hi.max(e);
+            }
+        }
+    }
+    if lo > hi {
+        0
+    } else {
+        hi - lo + 53
+    }
+}
+
 /// Refines the sorted zeros `zeros` of the SISO model `ss` in place (see the module doc).
 pub fn refine_siso(ss: &StateSpace<f64>, zeros: &mut [(f64, f64)]) -> Refinement {
     let skip = Refinement::default();
@@ -65,10 +92,18 @@ pub fn refine_siso(ss: &StateSpace<f64>, zeros: &mut [(f64, f64)]) -> Refinement
     let seq = certified_double_double(ss.a.as_slice(), n, false, Some(ss));
     // The bound of the recursion plus the final rounding to float64.
     let bound = seq.worst_relative_bound() + f64::EPSILON / 2.0;
-    if !(seq.is_finite() && bound <= MAX_BOUND) {
+    let num = if seq.is_finite() && bound <= MAX_BOUND {
+        seq.numerator
+    } else if entry_bits(ss) <= MAX_EXACT_ENTRY_BITS {
+        // Exact on the float data, rounded once (the entries' binary exponents span few
+        // bits, so the integers of the exact recursion stay small).
+        match transfer_function_f64(ss, Method::Exact) {
+            Ok((num, _, _)) => num,
+            Err(_) => return skip,
+        }
+    } else {
         return skip;
-    }
-    let num = seq.numerator;
+    };
     let lead = num.iter().take_while(|c| **c == 0.0).count();
     let num = &num[lead..];
     if num.len() != zeros.len() + 1 {
