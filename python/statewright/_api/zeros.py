@@ -70,7 +70,8 @@ def invariant_zeros(a: Any, b: Any, c: Any, d: Any, *, tol: Optional[float] = No
     the zeros are far more accurate than the roots of the recovered numerator polynomial.
     For a SISO model (order <= 40) the pencil zeros then start Aberth-Ehrlich steps in
     double-double on the numerator polynomial, whose coefficients the recovery certifies
-    (or rounds correctly): the pencil's absolute error ``eps * ||A||`` would otherwise
+    (or computes exactly and rounds once, while the entries' binary exponents span at most
+    200 bits): the pencil's absolute error ``eps * ||A||`` would otherwise
     cost the small zeros their relative accuracy when poles spread over many decades. The
     refined zeros are kept only if every one converges and stays within ``1e-6``
     (relative) of its pencil value. Every zero is checked against the (balanced) system
