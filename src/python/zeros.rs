@@ -28,6 +28,8 @@ fn zeros_out<'py>(
     info.set_item("regular_order", z.info.regular_order)?;
     info.set_item("residual", z.info.residual)?;
     info.set_item("verified", z.info.verified)?;
+    info.set_item("refined", z.info.refined)?;
+    info.set_item("refinement_move", z.info.refinement_move)?;
     let decisions: Vec<(&str, u8, Vec<f64>, usize)> = z
         .info
         .decisions

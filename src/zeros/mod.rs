@@ -5,11 +5,13 @@
 //! | invariant zeros, transmission zeros, normal rank (system pencil reduction) | [`pencil`] |
 //! | DC gain G(0) or G(1) | [`dc_gain`] |
 //! | zeros, poles and gain of a SISO transfer function, and back | [`zeros_poles_gain`] |
+//! | refinement of SISO zeros against the numerator in double-double | [`refine`] |
 //! | invariant zeros of many models at once | [`batch`] |
 
 pub mod batch;
 pub mod dc_gain;
 pub mod pencil;
+pub mod refine;
 pub mod zeros_poles_gain;
 
 use crate::matrix::Matrix;

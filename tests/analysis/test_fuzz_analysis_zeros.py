@@ -41,6 +41,35 @@ def test_invariant_and_transmission_zeros(model, tol):
             check_zeros(z, model_dims(a, b, c)[0])
 
 
+@CI
+@given(
+    seed=st.integers(0, 2**32 - 1),
+    n=st.integers(1, 12),
+    decades=st.integers(0, 8),
+    d=st.sampled_from([0.0, 0.0, 1.0, 1e-9]),
+)
+def test_siso_zeros_with_spread_poles(seed, n, decades, d):
+    # SISO models with poles over up to 8 decades behind a random similarity: the path of
+    # the refinement against the numerator. Contract: sorted finite zeros (at most n), the
+    # refinement's figures consistent, and the pencil check passed (the residual).
+    rng = np.random.default_rng(seed)
+    poles = -np.logspace(-decades / 2, decades / 2, n) * rng.uniform(0.8, 1.25, n)
+    t = rng.standard_normal((n, n))
+    a = t @ np.diag(poles) @ np.linalg.inv(t)
+    b, c = rng.standard_normal((n, 1)), rng.standard_normal((1, n))
+    out = attempt(sw.invariant_zeros, a, b, c, np.array([[d]]), return_info=True)
+    if out is FAILED:
+        return
+    z, info = out
+    check_zeros(z, n)
+    assert isinstance(info["refined"], bool)
+    assert info["refinement_move"] >= 0.0
+    assert info["refined"] or info["refinement_move"] == 0.0
+    if info["refined"]:
+        assert info["refinement_move"] <= 1e-6
+    assert info["residual"] <= max(np.sqrt(np.finfo(float).eps), 10 * (n + 1) * info["tol"])
+
+
 @CI_SLOW
 @given(model=float_model(), tol=bad_tol())
 def test_normal_rank(model, tol):

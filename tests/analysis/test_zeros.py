@@ -221,6 +221,33 @@ def test_siso_zeros_match_mpmath_roots_of_the_numerator(order):
     assert matched_distance(z, ref) < 1e-9, (z, ref)
 
 
+@pytest.mark.parametrize("decades", [4, 6])
+def test_siso_zeros_spread_over_decades_are_accurate_relative_to_their_size(decades):
+    # Reference: exact_zeros (sympy determinant of the Rosenbrock system matrix of the float
+    # data, mpmath roots at 60 digits). Poles spread over `decades` decades behind a
+    # random similarity: the pencil alone loses relative accuracy on the small zeros; the
+    # refinement against the numerator keeps each zero accurate relative to its own size.
+    rng = np.random.default_rng(RNG_SEED + decades)
+    order = 8
+    poles = -np.logspace(-decades / 2, decades / 2, order)
+    t = rng.standard_normal((order, order))
+    a = t @ np.diag(poles) @ np.linalg.inv(t)
+    b = rng.standard_normal((order, 1))
+    c = rng.standard_normal((1, order))
+    d = np.zeros((1, 1))
+    z, info = sw.invariant_zeros(a, b, c, d, return_info=True)
+    ref = exact_zeros(a, b, c, d)
+    assert info["refined"] and info["residual"] < 1e-12
+    assert len(z) == len(ref) == order - 1
+    worst = 0.0
+    found = list(z)
+    for e in ref:
+        k = int(np.argmin([abs(f - e) for f in found]))
+        worst = max(worst, abs(found[k] - e) / abs(e))
+        found.pop(k)
+    assert worst < 1e-12, (z, ref)
+
+
 def test_zeros_poles_gain_against_mpmath_roots():
     # Reference: mpmath.polyroots at 60 digits.
     rng = np.random.default_rng(RNG_SEED + 99)

@@ -39,7 +39,8 @@ def _convert(
         out = compute.convert_exact(arrays, t, method, forward)  # type: ignore[arg-type]
         info = {"method": method, "sample_time": t}
         return Realization._trusted(*out, info, sample_time=t if forward else None)
-    model = v.float_model(a, b, c, d)
+    # The core copies the matrices and checks their finiteness.
+    model = v.float_model_for_core(a, b, c, d)
     seconds = tb.sample_time(sample_time)
     out, info = compute.convert(model, seconds, method, prewarp, forward)
     return Realization._trusted(*out, info, frozen=True, sample_time=seconds if forward else None)
@@ -226,8 +227,11 @@ def frequency_response(
     frequency Gaussian elimination with partial pivoting on the Hessenberg matrix
     ``sI - H`` and back substitution (O(n^2) per frequency instead of O(n^3)); never
     through the transfer-function coefficients, whose values are ill-conditioned at high
-    orders. Backward stable; the frequencies are spread over threads when the work is
-    large.
+    orders. With at least 3n frequencies the Hessenberg matrix is carried on to the real
+    Schur form (Francis QR iteration; quasi-triangular, itself a Hessenberg matrix), whose
+    Hessenberg solve is a back substitution with the real ``T`` and a 2x2 complex solve per
+    complex pair: about a quarter of the arithmetic per frequency. Backward stable either
+    way; the frequencies are spread over threads when the work is large.
 
     Examples
     --------
@@ -237,7 +241,7 @@ def frequency_response(
     >>> bool(np.allclose(g[:, 0, 0], [0.5, 1 / (2 + 2j)]))
     True
     """
-    model = v.float_model(a, b, c, d)
+    model = v.float_model_for_core(a, b, c, d)
     return compute.frequency_response(model, tb.frequencies(frequencies), tb.optional_sample_time(sample_time))
 
 

@@ -244,6 +244,30 @@ def float_model(a: Any, b: Any, c: Any, d: Any) -> Tuple[np.ndarray, np.ndarray,
     return fa, fb, fc, fd
 
 
+def float_model_for_core(a: Any, b: Any, c: Any, d: Any) -> Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """The four matrices of a model for a core routine that copies them and checks their
+    finiteness itself (same message as here): float64 2-D arrays pass as they are, shapes
+    checked; anything else goes through :func:`float_model`. The fast path of single
+    calls on small models."""
+    if (
+        type(a) is np.ndarray
+        and type(b) is np.ndarray
+        and type(c) is np.ndarray
+        and type(d) is np.ndarray
+        and a.dtype == np.float64
+        and b.dtype == np.float64
+        and c.dtype == np.float64
+        and d.dtype == np.float64
+        and a.ndim == 2
+        and b.ndim == 2
+        and c.ndim == 2
+        and d.ndim == 2
+    ):
+        check_model_shapes(a, b, c, d)
+        return a, b, c, d
+    return float_model(a, b, c, d)
+
+
 def frozen(x: np.ndarray) -> np.ndarray:
     """x made read-only (results are handed out frozen, so callers cannot edit them in place)."""
     x.flags.writeable = False
