@@ -11,6 +11,7 @@
 //! | controller, observer | [`controller`] |
 //! | controllability, observability | [`krylov`] |
 //! | modal | [`modal`] (float only) |
+//! | Luenberger controller / observer forms of MIMO models | [`multivariable`] |
 //! | block_controller, block_observer (p × m transfer matrices) | [`transfer_matrix`] |
 
 pub mod controllable;
@@ -18,6 +19,7 @@ pub mod controller;
 pub mod jordan;
 pub mod krylov;
 pub mod modal;
+pub mod multivariable;
 pub mod roots;
 pub mod transfer_matrix;
 
