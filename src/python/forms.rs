@@ -1,7 +1,7 @@
 //! Bindings of the Jordan (parallel) form and the Luenberger multivariable forms, float and exact.
 
 use super::convert::{
-    array2, exact_model_from, exact_out_vec, exact_quad, exact_vector, model_from, quad,
+    array2, exact_model_from, exact_out, exact_out_vec, exact_quad, exact_vector, model_from, quad,
     vector_from, ExactIn, ExactOut, ModelIn, Quad,
 };
 use super::errors::{run, to_py};
@@ -80,11 +80,14 @@ fn multivariable_info<'py>(
 ) -> PyResult<Bound<'py, PyDict>> {
     let d = PyDict::new(py);
     d.set_item("indices", info.indices)?;
-    d.set_item("condition", info.condition)?;
+    // ∞ only in exact mode, for a T too wide for float64 even after scaling: None.
+    d.set_item(
+        "condition",
+        info.condition.is_finite().then_some(info.condition),
+    )?;
     d.set_item("residual", info.residual)?;
     d.set_item("markov_error", info.markov_error)?;
     d.set_item("tol", info.tol)?;
-    d.set_item("transform", array2(py, info.transform)?)?;
     Ok(d)
 }
 
@@ -101,7 +104,10 @@ pub(crate) fn multivariable_form_float<'py>(
     let (out, info) = run(py, move || {
         multivariable::multivariable_f64(&ss, which, tol)
     })?;
-    Ok((quad(py, out, true)?, multivariable_info(py, info)?))
+    let transform = array2(py, info.transform.clone())?;
+    let d = multivariable_info(py, info)?;
+    d.set_item("transform", transform)?;
+    Ok((quad(py, out, true)?, d))
 }
 
 #[pyfunction]
@@ -112,6 +118,8 @@ pub(crate) fn multivariable_form_exact<'py>(
 ) -> PyResult<(ExactQuadOut, Bound<'py, PyDict>)> {
     let which = luenberger(form)?;
     let ss = exact_model_from(model)?;
-    let (out, info) = run(py, move || multivariable::multivariable_exact(&ss, which))?;
-    Ok((exact_quad(out), multivariable_info(py, info)?))
+    let (out, info, t) = run(py, move || multivariable::multivariable_exact(&ss, which))?;
+    let d = multivariable_info(py, info)?;
+    d.set_item("transform", exact_out(t))?;
+    Ok((exact_quad(out), d))
 }

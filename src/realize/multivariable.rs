@@ -522,19 +522,35 @@ fn inverse_exact(m: &Matrix<Q>) -> Option<Matrix<Q>> {
     Matrix::from_row_major(n, n, inv.into_iter().flatten().collect())
 }
 
-/// An exact matrix rounded to float64 (for its condition number); ∞ where out of range.
-fn to_f64_matrix(m: &Matrix<Q>) -> Matrix<f64> {
-    m.map(|q: &Q| q.to_f64().unwrap_or(f64::INFINITY))
+/// An exact matrix scaled by a power of two (its largest entry near 1) and rounded to
+/// float64: the condition number is scale invariant, so entries beyond the float64 range
+/// still give one (∞ when the scaled copy is singular in float64).
+fn scaled_f64_matrix(m: &Matrix<Q>) -> Matrix<f64> {
+    let top = m
+        .as_slice()
+        .iter()
+        .filter(|q| !q.is_zero())
+        .map(|q| q.numer().bits() as i64 - q.denom().bits() as i64)
+        .max()
+        .unwrap_or(0);
+    let two = num_bigint::BigInt::from(2u8);
+    let factor = if top >= 0 {
+        Q::new(num_bigint::BigInt::one(), two.pow(top as u32))
+    } else {
+        Q::from_integer(two.pow((-top) as u32))
+    };
+    m.map(|q: &Q| (q * &factor).to_f64().unwrap_or(f64::INFINITY))
 }
 
-/// The exact Luenberger form of `ss` with its info (indices by exact column selection).
+/// The exact Luenberger form of `ss`, its info and the exact transformation `T` (`z = T x`;
+/// `info.transform` is left empty), indices by exact column selection.
 ///
 /// # Errors
 /// `BadValue` when not controllable (observable); `TooLarge` above order 64.
 pub fn multivariable_exact(
     ss: &StateSpace<Q>,
     form: LuenbergerForm,
-) -> Result<(StateSpace<Q>, MultivariableInfo)> {
+) -> Result<(StateSpace<Q>, MultivariableInfo, Matrix<Q>)> {
     let n = ss.n_states();
     check_order(n, MAX_ORDER_EXACT)?;
     let pr = primal(ss, form);
@@ -629,15 +645,15 @@ pub fn multivariable_exact(
         c: pr.c.matmul(&t_inv),
         d: pr.d.clone(),
     };
-    let tf = to_f64_matrix(&t);
+    let tf = scaled_f64_matrix(&t);
     let condition = if tf.as_slice().iter().all(|v| v.is_finite()) {
         condition_number(&tf)?
     } else {
         f64::INFINITY
     };
     let (result, transform) = match form {
-        LuenbergerForm::Controller => (out, tf),
-        LuenbergerForm::Observer => (out.dual(), to_f64_matrix(&t_inv.transpose())),
+        LuenbergerForm::Controller => (out, t),
+        LuenbergerForm::Observer => (out.dual(), t_inv.transpose()),
     };
     let info = MultivariableInfo {
         indices: mu,
@@ -645,7 +661,7 @@ pub fn multivariable_exact(
         residual: 0.0,
         markov_error: 0.0,
         tol: None,
-        transform,
+        transform: Matrix::zeros(0, 0),
     };
-    Ok((result, info))
+    Ok((result, info, transform))
 }

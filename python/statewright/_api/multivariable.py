@@ -50,9 +50,10 @@ def multivariable_canonical_form(
     Realization
         n states. ``info`` holds ``"indices"`` (the controllability indices, one per input
         in the given order, or the observability indices per output; they sum to n),
-        ``"condition"`` (2-norm condition number of ``T``; in exact mode of ``T`` rounded
-        to float), ``"transform"`` (``T`` as floats, ``z = T x``; the observer form's is
-        ``T^-T`` of the dual), and in float ``"residual"`` (normwise relative residual of
+        ``"condition"`` (2-norm condition number of ``T``; in exact mode of ``T`` scaled by
+        a power of two and rounded to float, ``None`` if that copy is singular in float),
+        ``"transform"`` (``T``, ``z = T x``, exact Fractions in exact mode; the observer
+        form's is ``T^-T`` of the dual's ``T``), and in float ``"residual"`` (normwise relative residual of
         ``T A = A_c T``, ``T B = B_c``, ``C = C_c T``), ``"markov_error"`` (largest
         deviation of the first 2n Markov parameters, computed on ``A / ||A||_F``, relative
         to ``||C||_F ||B||_F``) and ``"tol"`` (the staircase tolerance used).
@@ -107,9 +108,9 @@ def multivariable_canonical_form(
     if v.check_flag(exact, "exact"):
         if tol is not None:
             raise ModelError("tol: the exact multivariable form selects columns exactly and takes no tolerance")
-        model = tuple(v.exact_matrix(x, name) for x, name in zip((a, b, c, d), "abcd"))
+        model = (v.exact_matrix(a, "a"), v.exact_matrix(b, "b"), v.exact_matrix(c, "c"), v.exact_matrix(d, "d"))
         v.check_model_shapes(*model)
-        ea, eb, ec, ed, info = _forms.multivariable_exact(model, form)  # type: ignore[arg-type]
+        ea, eb, ec, ed, info = _forms.multivariable_exact(model, form)
         return Realization._trusted(ea, eb, ec, ed, info)
     fa, fb, fc, fd, info = _forms.multivariable_float(v.float_model(a, b, c, d), form, tol)
     return Realization._trusted(fa, fb, fc, fd, info, frozen=True)

@@ -48,17 +48,16 @@ def jordan_exact(
     return a, b, c, d, info
 
 
-def _multivariable_info(raw: Dict[str, Any]) -> Dict[str, Any]:
-    info: Dict[str, Any] = {
+def _multivariable_info(raw: Dict[str, Any], transform: np.ndarray) -> Dict[str, Any]:
+    transform.setflags(write=False)
+    return {
         "indices": tuple(int(k) for k in raw["indices"]),
-        "condition": float(raw["condition"]),
+        "condition": raw["condition"],
         "residual": float(raw["residual"]),
         "markov_error": float(raw["markov_error"]),
         "tol": raw["tol"],
-        "transform": np.asarray(raw["transform"], dtype=float),
+        "transform": transform,
     }
-    info["transform"].setflags(write=False)
-    return info
 
 
 def multivariable_float(
@@ -66,14 +65,16 @@ def multivariable_float(
 ) -> Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, Dict[str, Any]]:
     """``(a, b, c, d, info)`` of the float Luenberger form (``form`` controller/observer)."""
     (a, b, c, d), raw = _core.multivariable_form_float(model, form, tol)
-    return a, b, c, d, _multivariable_info(raw)
+    return a, b, c, d, _multivariable_info(raw, np.asarray(raw["transform"], dtype=float))
 
 
 def multivariable_exact(
     model: Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray], form: str
 ) -> Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, Dict[str, Any]]:
     """``(a, b, c, d, info)`` of the exact Luenberger form (object arrays of Fractions)."""
-    core_model = tuple(v.to_core(x) for x in model)
+    a_in, b_in, c_in, d_in = model
+    core_model = (v.to_core(a_in), v.to_core(b_in), v.to_core(c_in), v.to_core(d_in))
     quad, raw = _core.multivariable_form_exact(core_model, form)
     a, b, c, d = (v.fraction_array(x, (x[0], x[1])) for x in quad)
-    return a, b, c, d, _multivariable_info(raw)
+    t = raw["transform"]
+    return a, b, c, d, _multivariable_info(raw, v.fraction_array(t, (t[0], t[1])))
