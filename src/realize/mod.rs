@@ -164,6 +164,21 @@ pub fn realize_f64(
         (ss, Some(info))
     } else if form == Form::Jordan {
         (jordan::jordan_from_split(&split, None)?.0, None)
+    } else if matches!(form, Form::Controllability | Form::Observability) {
+        // The Markov parameters exactly from the dyadic data, rounded once.
+        let h = krylov::markov_parameters_f64(num, den)?;
+        let mut ss = krylov::controllability(&split);
+        if split.order() > 0 {
+            ss.c = Matrix::from_row_major(1, h.len(), h).expect("1 x n");
+        }
+        (
+            if form == Form::Observability {
+                ss.dual()
+            } else {
+                ss
+            },
+            None,
+        )
     } else {
         (companion_from_split(&split, form)?, None)
     };
