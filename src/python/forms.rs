@@ -1,7 +1,7 @@
 //! Bindings of the Jordan (parallel) form and the Luenberger multivariable forms, float and exact.
 
 use super::convert::{
-    array2, exact_model_from, exact_out, exact_out_vec, exact_quad, exact_vector, model_from, quad,
+    array2, exact_model_from, exact_out_vec, exact_quad, exact_vector, model_from, quad,
     vector_from, ExactIn, ExactOut, ModelIn, Quad,
 };
 use super::errors::{run, to_py};
@@ -118,8 +118,6 @@ pub(crate) fn multivariable_form_exact<'py>(
 ) -> PyResult<(ExactQuadOut, Bound<'py, PyDict>)> {
     let which = luenberger(form)?;
     let ss = exact_model_from(model)?;
-    let (out, info, t) = run(py, move || multivariable::multivariable_exact(&ss, which))?;
-    let d = multivariable_info(py, info)?;
-    d.set_item("transform", exact_out(t))?;
-    Ok((exact_quad(out), d))
+    let (out, info) = run(py, move || multivariable::multivariable_exact(&ss, which))?;
+    Ok((exact_quad(out), multivariable_info(py, info)?))
 }

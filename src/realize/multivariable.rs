@@ -37,7 +37,10 @@
 //! pattern of the form (structural ones and zeros exact).
 //!
 //! In exact mode (rationals) the scan is the definition itself: exact elimination of each
-//! candidate column against those kept; `T`, `T⁻¹` and the form are exact.
+//! candidate column against those kept. The form is then built in two exact steps so that
+//! no inverse of the Krylov basis is formed: Luenberger's controllability form
+//! `(P⁻¹ A P, P⁻¹ B, C P)` (m solves with P), in which the kept columns are unit vectors,
+//! then the controller form of that, whose `T` has small entries.
 //!
 //! # Numerical aspects
 //! The form is as well conditioned as `T`: its entries carry relative errors of about
@@ -59,7 +62,8 @@
 //! `Shape` / `NonFinite` for bad input, `BadValue` when the model is not controllable
 //! (resp. observable) or the index assignment is too close to call, `IllConditioned`-type
 //! refusals as `Unverified` (condition number or residual above its limit), `TooLarge`
-//! above order 1024 (float) or 64 (exact).
+//! above order 1024 (float) or 64 (exact), or when the exact form's estimated time exceeds
+//! the exact-arithmetic budget (checked before the work starts).
 
 use crate::error::{require_finite, ModelError, Result};
 use crate::matrix::{frobenius_norm, Matrix};
@@ -542,19 +546,66 @@ fn scaled_f64_matrix(m: &Matrix<Q>) -> Matrix<f64> {
     m.map(|q: &Q| (q * &factor).to_f64().unwrap_or(f64::INFINITY))
 }
 
-/// The exact Luenberger form of `ss`, its info and the exact transformation `T` (`z = T x`;
-/// `info.transform` is left empty), indices by exact column selection.
+/// Seconds per unit of [`check_exact_budget`]'s cost model, measured on this machine
+/// class with margin (the model overestimates large entries, so it refuses on the safe side).
+const SECONDS_PER_UNIT: f64 = 4e-8;
+
+/// Refuses, before any work, an exact form whose estimated time exceeds the exact-arithmetic
+/// budget. Cost model: `n⁴ (1 + n² β / 64)^1.6` units, β the bits of A's entries once its
+/// denominators are cleared (the bits of its distinct denominators plus its longest
+/// numerator) plus the longest entry of B: the Krylov columns and the eliminations carry
+/// numbers of about `n² β` bits.
+fn check_exact_budget(ss: &StateSpace<Q>) -> Result<()> {
+    let n = ss.n_states() as f64;
+    let mut dens: Vec<&num_bigint::BigInt> = ss.a.as_slice().iter().map(|q| q.denom()).collect();
+    dens.sort();
+    dens.dedup();
+    let den_bits: u64 = dens.iter().map(|d| d.bits()).sum();
+    let num_bits =
+        ss.a.as_slice()
+            .iter()
+            .map(|q| q.numer().bits())
+            .max()
+            .unwrap_or(0);
+    let b_bits =
+        ss.b.as_slice()
+            .iter()
+            .map(|q| q.numer().bits() + q.denom().bits())
+            .max()
+            .unwrap_or(0);
+    let beta = (den_bits + num_bits + b_bits) as f64;
+    let units = n.powi(4) * (1.0 + n * n * beta / 64.0).powf(1.6);
+    let seconds = units * SECONDS_PER_UNIT;
+    let budget = crate::recover::rational::EXACT_TIME_BUDGET_SECONDS;
+    if seconds > budget {
+        return Err(ModelError::TooLarge {
+            arg: "a",
+            detail: format!(
+                "the exact multivariable form of this order-{} model with entries of about {beta:.0} \
+                 bits (denominators cleared) would take about {seconds:.0} s, beyond the {budget} s \
+                 budget of exact arithmetic; use fewer distinct denominators or float data",
+                ss.n_states()
+            ),
+        });
+    }
+    Ok(())
+}
+
+/// The exact Luenberger form of `ss` and its info (`info.transform` is left empty),
+/// indices by exact column selection.
 ///
 /// # Errors
-/// `BadValue` when not controllable (observable); `TooLarge` above order 64.
+/// `BadValue` when not controllable (observable); `TooLarge` above order 64 or beyond the
+/// exact-arithmetic time budget (estimated before the work starts).
 pub fn multivariable_exact(
     ss: &StateSpace<Q>,
     form: LuenbergerForm,
-) -> Result<(StateSpace<Q>, MultivariableInfo, Matrix<Q>)> {
+) -> Result<(StateSpace<Q>, MultivariableInfo)> {
     let n = ss.n_states();
     check_order(n, MAX_ORDER_EXACT)?;
     let pr = primal(ss, form);
     let m = pr.n_inputs();
+    check_exact_budget(&pr)?;
     let mut mu = vec![0usize; m];
     if n > 0 {
         // The scan b_1..b_m, A b_1..A b_m, ... with exact elimination.
@@ -602,8 +653,11 @@ pub fn multivariable_exact(
             return Err(not_reached(form, basis.len(), n));
         }
     }
-    // P, its inverse's rows σ_j, T.
+    // Two steps, so that no big inverse is formed: first Luenberger's controllability form
+    // in the basis P of the kept Krylov columns (m solves with P), where the kept columns
+    // are unit vectors; then the controller form of that, whose T has small entries.
     let mut p = Matrix::<Q>::zeros(n, n);
+    let mut rhs: Vec<Vec<Q>> = Vec::new(); // A^{μ_j} b_j (μ_j > 0), or b_j (μ_j = 0)
     let mut at = 0;
     for (j, &mj) in mu.iter().enumerate() {
         let mut v: Vec<Q> = (0..n).map(|i| pr.b.get(i, j).clone()).collect();
@@ -615,8 +669,31 @@ pub fn multivariable_exact(
             let col = Matrix::from_row_major(n, 1, v).expect("n x 1");
             v = pr.a.matmul(&col).into_vec();
         }
+        rhs.push(v);
     }
-    let p_inv = inverse_exact(&p).ok_or_else(|| not_reached(form, n.saturating_sub(1), n))?;
+    let x = solve_exact(&p, &rhs).ok_or_else(|| not_reached(form, n.saturating_sub(1), n))?;
+    // (A_p, B_p, C_p) = (P⁻¹ A P, P⁻¹ B, C P).
+    let mut a_p = Matrix::<Q>::zeros(n, n);
+    let mut b_p = Matrix::<Q>::zeros(n, m);
+    let mut start = 0;
+    for (j, &mj) in mu.iter().enumerate() {
+        if mj == 0 {
+            for i in 0..n {
+                b_p.set(i, j, x[j][i].clone());
+            }
+            continue;
+        }
+        b_p.set(start, j, Q::one());
+        for r in 0..mj - 1 {
+            a_p.set(start + r + 1, start + r, Q::one());
+        }
+        for i in 0..n {
+            a_p.set(i, start + mj - 1, x[j][i].clone());
+        }
+        start += mj;
+    }
+    let c_p = pr.c.matmul(&p);
+    // Controller form of (A_p, B_p): q_j = e_{σ_j}ᵀ, T rows q_j A_p^r.
     let mut t = Matrix::<Q>::zeros(n, n);
     let (mut row, mut sigma) = (0usize, 0usize);
     for &mj in &mu {
@@ -624,36 +701,51 @@ pub fn multivariable_exact(
             continue;
         }
         sigma += mj;
-        let mut r = Matrix::from_row_major(
-            1,
-            n,
-            (0..n).map(|k| p_inv.get(sigma - 1, k).clone()).collect(),
-        )
-        .expect("1 x n");
+        let mut r = Matrix::<Q>::zeros(1, n);
+        r.set(0, sigma - 1, Q::one());
         for _ in 0..mj {
             for k in 0..n {
                 t.set(row, k, r.get(0, k).clone());
             }
             row += 1;
-            r = r.matmul(&pr.a);
+            r = r.matmul(&a_p);
         }
     }
     let t_inv = inverse_exact(&t).ok_or_else(|| not_reached(form, n.saturating_sub(1), n))?;
     let out = StateSpace {
-        a: t.matmul(&pr.a).matmul(&t_inv),
-        b: t.matmul(&pr.b),
-        c: pr.c.matmul(&t_inv),
+        a: t.matmul(&a_p).matmul(&t_inv),
+        b: t.matmul(&b_p),
+        c: c_p.matmul(&t_inv),
         d: pr.d.clone(),
     };
-    let tf = scaled_f64_matrix(&t);
-    let condition = if tf.as_slice().iter().all(|v| v.is_finite()) {
-        condition_number(&tf)?
+    // κ₂ of the whole transformation T P⁻¹ (z = T P⁻¹ x), in float from scaled copies.
+    let condition = if n == 0 {
+        1.0
     } else {
-        f64::INFINITY
+        let (tf, pf) = (scaled_f64_matrix(&t), scaled_f64_matrix(&p));
+        if tf
+            .as_slice()
+            .iter()
+            .chain(pf.as_slice())
+            .all(|v| v.is_finite())
+        {
+            // (T P⁻¹)ᵀ = P⁻ᵀ Tᵀ: solve Pᵀ Y = Tᵀ.
+            let y = to_faer(&pf.transpose())
+                .partial_piv_lu()
+                .solve(to_faer(&tf.transpose()));
+            let whole = from_faer(y.as_ref());
+            if whole.as_slice().iter().all(|v| v.is_finite()) {
+                condition_number(&whole)?
+            } else {
+                f64::INFINITY
+            }
+        } else {
+            f64::INFINITY
+        }
     };
-    let (result, transform) = match form {
-        LuenbergerForm::Controller => (out, t),
-        LuenbergerForm::Observer => (out.dual(), t_inv.transpose()),
+    let result = match form {
+        LuenbergerForm::Controller => out,
+        LuenbergerForm::Observer => out.dual(),
     };
     let info = MultivariableInfo {
         indices: mu,
@@ -663,5 +755,47 @@ pub fn multivariable_exact(
         tol: None,
         transform: Matrix::zeros(0, 0),
     };
-    Ok((result, info, transform))
+    Ok((result, info))
+}
+
+/// The solutions `x_k` of `P x_k = r_k` by one exact elimination; None when P is singular.
+fn solve_exact(p: &Matrix<Q>, rhs: &[Vec<Q>]) -> Option<Vec<Vec<Q>>> {
+    let n = p.rows();
+    let k = rhs.len();
+    let mut a: Vec<Vec<Q>> = (0..n)
+        .map(|i| {
+            (0..n)
+                .map(|j| p.get(i, j).clone())
+                .chain(rhs.iter().map(|r| r[i].clone()))
+                .collect()
+        })
+        .collect();
+    for col in 0..n {
+        let piv = (col..n).find(|&r| !a[r][col].is_zero())?;
+        a.swap(col, piv);
+        let pivot_row = a[col].clone();
+        for r in col + 1..n {
+            if !a[r][col].is_zero() {
+                let f = a[r][col].clone() / &pivot_row[col];
+                for (x, y) in a[r].iter_mut().zip(&pivot_row).skip(col) {
+                    if !y.is_zero() {
+                        *x -= &f * y;
+                    }
+                }
+            }
+        }
+    }
+    let mut out = vec![vec![Q::zero(); n]; k];
+    for (c, sol) in out.iter_mut().enumerate() {
+        for i in (0..n).rev() {
+            let mut v = a[i][n + c].clone();
+            for j in i + 1..n {
+                if !a[i][j].is_zero() && !sol[j].is_zero() {
+                    v -= &a[i][j] * &sol[j];
+                }
+            }
+            sol[i] = v / &a[i][i];
+        }
+    }
+    Some(out)
 }

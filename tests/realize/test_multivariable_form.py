@@ -251,3 +251,13 @@ def test_zero_states_and_single_input_matches_companion():
     ref = sw.realize([1, 3], [1, 3, 2], "controllable_canonical", exact=True)
     for x, y in zip(r, ref):
         assert (np.asarray(x) == np.asarray(y)).all()
+
+
+def test_exact_budget_refused_before_the_work():
+    """An order-8 model whose entries have 64 distinct 100-bit denominators: the estimate
+    (numbers of about n^2 * 6500 bits) is far beyond the 30 s budget, refused at once."""
+    rng = np.random.default_rng(5)
+    a = [[Fraction(int(rng.integers(1, 2**62)), 2**100 + 2 * (8 * i + j) + 1) for j in range(8)] for i in range(8)]
+    b = [[1, 0]] + [[0, 1]] + [[0, 0]] * 6
+    with pytest.raises(sw.ModelError, match="budget"):
+        sw.multivariable_canonical_form(a, b, [[1] * 8], [[0, 0]], exact=True)

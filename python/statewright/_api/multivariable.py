@@ -50,10 +50,10 @@ def multivariable_canonical_form(
     Realization
         n states. ``info`` holds ``"indices"`` (the controllability indices, one per input
         in the given order, or the observability indices per output; they sum to n),
-        ``"condition"`` (2-norm condition number of ``T``; in exact mode of ``T`` scaled by
-        a power of two and rounded to float, ``None`` if that copy is singular in float),
-        ``"transform"`` (``T``, ``z = T x``, exact Fractions in exact mode; the observer
-        form's is ``T^-T`` of the dual's ``T``), and in float ``"residual"`` (normwise relative residual of
+        ``"condition"`` (2-norm condition number of ``T``; in exact mode computed in float
+        from its exact factors scaled by powers of two, ``None`` if that fails), and in
+        float ``"transform"`` (``T``, ``z = T x``; the observer form's is ``T^-T`` of the
+        dual's ``T``), ``"residual"`` (normwise relative residual of
         ``T A = A_c T``, ``T B = B_c``, ``C = C_c T``), ``"markov_error"`` (largest
         deviation of the first 2n Markov parameters, computed on ``A / ||A||_F``, relative
         to ``||C||_F ||B||_F``) and ``"tol"`` (the staircase tolerance used).
@@ -67,7 +67,9 @@ def multivariable_canonical_form(
         staircase's step size and the scan disagree); a transformation with condition
         number above ``1/sqrt(eps)`` (about 6.7e7: the entries would keep fewer than half
         their digits); a similarity residual above ``sqrt(eps)``; ``tol`` in exact mode;
-        an order above 1024 (64 in exact mode).
+        an order above 1024 (64 in exact mode); an exact request whose estimated time
+        (from the order and the bit length of the entries, denominators cleared) exceeds
+        the 30 s budget of exact arithmetic, refused before the work starts.
 
     Notes
     -----

@@ -48,16 +48,21 @@ def jordan_exact(
     return a, b, c, d, info
 
 
-def _multivariable_info(raw: Dict[str, Any], transform: np.ndarray) -> Dict[str, Any]:
-    transform.setflags(write=False)
-    return {
+def _multivariable_info(raw: Dict[str, Any]) -> Dict[str, Any]:
+    info: Dict[str, Any] = {
         "indices": tuple(int(k) for k in raw["indices"]),
         "condition": raw["condition"],
-        "residual": float(raw["residual"]),
-        "markov_error": float(raw["markov_error"]),
-        "tol": raw["tol"],
-        "transform": transform,
     }
+    if "transform" in raw:  # float only
+        transform = np.asarray(raw["transform"], dtype=float)
+        transform.setflags(write=False)
+        info.update(
+            residual=float(raw["residual"]),
+            markov_error=float(raw["markov_error"]),
+            tol=raw["tol"],
+            transform=transform,
+        )
+    return info
 
 
 def multivariable_float(
@@ -65,7 +70,7 @@ def multivariable_float(
 ) -> Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, Dict[str, Any]]:
     """``(a, b, c, d, info)`` of the float Luenberger form (``form`` controller/observer)."""
     (a, b, c, d), raw = _core.multivariable_form_float(model, form, tol)
-    return a, b, c, d, _multivariable_info(raw, np.asarray(raw["transform"], dtype=float))
+    return a, b, c, d, _multivariable_info(raw)
 
 
 def multivariable_exact(
@@ -76,5 +81,4 @@ def multivariable_exact(
     core_model = (v.to_core(a_in), v.to_core(b_in), v.to_core(c_in), v.to_core(d_in))
     quad, raw = _core.multivariable_form_exact(core_model, form)
     a, b, c, d = (v.fraction_array(x, (x[0], x[1])) for x in quad)
-    t = raw["transform"]
-    return a, b, c, d, _multivariable_info(raw, v.fraction_array(t, (t[0], t[1])))
+    return a, b, c, d, _multivariable_info(raw)
