@@ -799,3 +799,50 @@ fn solve_exact(p: &Matrix<Q>, rhs: &[Vec<Q>]) -> Option<Vec<Vec<Q>>> {
     }
     Some(out)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn model_f64() -> StateSpace<f64> {
+        // (hand-worked) indices (2, 1); blocks [[0, 1], [-2, -3]] and [[-3]].
+        StateSpace::new(
+            Matrix::from_row_major(3, 3, vec![-1.0, 0.0, 0.0, 1.0, -2.0, 0.0, 0.0, 0.0, -3.0])
+                .unwrap(),
+            Matrix::from_row_major(3, 2, vec![1.0, 0.0, 0.0, 0.0, 0.0, 1.0]).unwrap(),
+            Matrix::from_row_major(2, 3, vec![1.0, 1.0, 0.0, 0.0, 0.0, 1.0]).unwrap(),
+            Matrix::zeros(2, 2),
+        )
+        .unwrap()
+    }
+
+    #[test]
+    fn hand_worked_controller_form() {
+        let expected_a = vec![0.0, 1.0, 0.0, -2.0, -3.0, 0.0, 0.0, 0.0, -3.0];
+        let expected_b = vec![0.0, 0.0, 1.0, 0.0, 0.0, 1.0];
+        let (out, info) =
+            multivariable_f64(&model_f64(), LuenbergerForm::Controller, None).unwrap();
+        assert_eq!(info.indices, vec![2, 1]);
+        assert_eq!(out.a.as_slice(), &expected_a[..]);
+        assert_eq!(out.b.as_slice(), &expected_b[..]);
+        let exact = model_f64();
+        let q = |m: &Matrix<f64>| m.map(|v| Q::from_float(*v).unwrap());
+        let exact = StateSpace::new(q(&exact.a), q(&exact.b), q(&exact.c), q(&exact.d)).unwrap();
+        let (out_q, info_q) = multivariable_exact(&exact, LuenbergerForm::Controller).unwrap();
+        assert_eq!(info_q.indices, vec![2, 1]);
+        assert_eq!(out_q.a, q(&out.a));
+        assert_eq!(out_q.b, q(&out.b));
+        assert_eq!(out_q.c, q(&out.c));
+    }
+
+    #[test]
+    fn refuses_an_uncontrollable_model() {
+        let mut ss = model_f64();
+        ss.b = Matrix::from_row_major(3, 2, vec![1.0, 0.0, 0.0, 0.0, 0.0, 0.0]).unwrap();
+        let err = multivariable_f64(&ss, LuenbergerForm::Controller, None).unwrap_err();
+        assert!(err.to_string().contains("not controllable"), "{err}");
+        // The observer form of the same model: (A, C) is observable.
+        let (_, info) = multivariable_f64(&ss, LuenbergerForm::Observer, None).unwrap();
+        assert_eq!(info.indices.iter().sum::<usize>(), 3);
+    }
+}
