@@ -818,8 +818,8 @@ mod tests {
 
     #[test]
     fn hand_worked_controller_form() {
-        let expected_a = vec![0.0, 1.0, 0.0, -2.0, -3.0, 0.0, 0.0, 0.0, -3.0];
-        let expected_b = vec![0.0, 0.0, 1.0, 0.0, 0.0, 1.0];
+        let expected_a = [0.0, 1.0, 0.0, -2.0, -3.0, 0.0, 0.0, 0.0, -3.0];
+        let expected_b = [0.0, 0.0, 1.0, 0.0, 0.0, 1.0];
         let (out, info) =
             multivariable_f64(&model_f64(), LuenbergerForm::Controller, None).unwrap();
         assert_eq!(info.indices, vec![2, 1]);
