@@ -30,7 +30,9 @@
 //! are taken in order and input j is kept when the part of `M_l e_j` orthogonal to the
 //! columns kept before it at this step exceeds `n² eps ‖A_{l,l-1}‖_F ‖M_{l-1} e_j‖_F`
 //! (`n² eps ‖b̃_j‖` at the first step): relative to the data that column is made from, so
-//! the decision does not change when an input is scaled. The number kept must equal the
+//! the decision does not change when an input is scaled. When exactly `k_l` inputs are
+//! still in the scan, all of them are kept without a test (the staircase decided). The
+//! number kept must equal the
 //! staircase's `k_l`; otherwise the assignment of indices to inputs is too close to call
 //! and the call is refused. The transformation is then built from the Krylov columns in the
 //! given coordinates (LU solves with partial pivoting) and the result placed into the exact
@@ -201,6 +203,14 @@ fn indices_on_staircase(
                     .collect();
             }
         }
+        // When as many inputs are still in the scan as the staircase finds new directions,
+        // every one of them is kept: there is nothing to decide (the staircase decided).
+        let candidates = active.iter().filter(|&&x| x).count();
+        if candidates == kl {
+            (0..m).filter(|&j| active[j]).for_each(|j| mu[j] += 1);
+            offset += kl;
+            continue;
+        }
         // Greedy scan over the inputs still active, against an orthonormal basis.
         let mut basis: Vec<Vec<f64>> = Vec::new();
         for j in 0..m {
@@ -361,7 +371,17 @@ pub fn multivariable_f64(
     }
     let (mu, used_tol) = indices_on_staircase(&pr, tol, form)?;
     let (t, tails) = float_transform(&pr, &mu);
-    let condition = condition_number(&t)?;
+    // A nearly singular Krylov basis can leave T beyond the float64 range: ill-conditioned.
+    let finite = t
+        .as_slice()
+        .iter()
+        .chain(tails.iter().flatten())
+        .all(|v| v.is_finite());
+    let condition = if finite {
+        condition_number(&t)?
+    } else {
+        f64::INFINITY
+    };
     if !(condition <= CONDITION_LIMIT) {
         return Err(ModelError::Unverified {
             what: "the multivariable canonical form",

@@ -261,3 +261,31 @@ def test_exact_budget_refused_before_the_work():
     b = [[1, 0]] + [[0, 1]] + [[0, 0]] * 6
     with pytest.raises(sw.ModelError, match="budget"):
         sw.multivariable_canonical_form(a, b, [[1] * 8], [[0, 0]], exact=True)
+
+
+def test_nearly_parallel_inputs_are_refused_not_misread():
+    """b_2 = b_1 + 1e-2 e_3 on a companion A: exactly, the indices are (3, 1) (sympy), but
+    the structure is not robust (models within rounding of it have (2, 2)); the float
+    staircase reads the generic (2, 2) and the transformation for it is singular to
+    working precision, so the float form is refused on its condition number rather than
+    returned with indices the data do not have. The exact form gives (3, 1)."""
+    a = [[0, 1, 0, 0], [0, 0, 1, 0], [0, 0, 0, 1], [-1, -2, -3, -4]]
+    b_exact = [[0, 0], [0, 0], [1, Fraction(101, 100)], [1, 1]]
+    assert _scan_indices(a, b_exact) == (3, 1)
+    r = sw.multivariable_canonical_form(a, b_exact, [[1, 0, 0, 0]], [[0, 0]], exact=True)
+    assert r.info["indices"] == (3, 1)
+    with pytest.raises(sw.ModelError, match="condition number"):
+        sw.multivariable_canonical_form(
+            np.array(a, dtype=float), np.array(b_exact, dtype=float), [[1.0, 0, 0, 0]], [[0.0, 0.0]]
+        )
+
+
+def test_observer_transform_reported():
+    """(identity) the observer form's S = info["transform"]: S A S^-1 = A_o, C S^-1 = C_o."""
+    rng = np.random.default_rng(11)
+    a, b, c = rng.standard_normal((5, 5)), rng.standard_normal((5, 1)), rng.standard_normal((2, 5))
+    r = sw.multivariable_canonical_form(a, b, c, np.zeros((2, 1)), "observer")
+    s = r.info["transform"]
+    np.testing.assert_allclose(s @ a, r.a @ s, atol=1e-10 * np.abs(s).max() * np.abs(a).max())
+    np.testing.assert_allclose(c, r.c @ s, atol=1e-10 * np.abs(s).max() * np.abs(c).max())
+    assert sum(r.info["indices"]) == 5

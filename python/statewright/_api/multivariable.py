@@ -83,7 +83,9 @@ def multivariable_canonical_form(
     staircase decides how many columns are new at each power, and in its coordinates the
     part of ``A^{l-1} b_j`` that is new at step ``l`` is a product of the staircase's
     subdiagonal blocks; the scan keeps input ``j`` there when that part, orthogonal to the
-    inputs kept before it, exceeds ``n^2 eps`` times the norm of the data it is made from.
+    inputs kept before it, exceeds ``n^2 eps`` times the norm of the data it is made from
+    (when only as many inputs are left as the staircase finds new directions, all are kept;
+    when the scan and the staircase disagree, the call is refused).
     The form is as well conditioned as ``T``: its entries carry relative errors of about
     ``cond(T) eps``, and ``cond(T)`` grows with the spread of the pole magnitudes and with
     the indices. The structural ones and zeros are exact.
