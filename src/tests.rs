@@ -6,7 +6,7 @@ use crate::krylov::controllability_matrix;
 use crate::matrix::Matrix;
 use crate::poly::split_proper;
 use crate::realize::{realize_companion, realize_f64, Form};
-use crate::recover::dyadic::round_scaled;
+use crate::recover::dyadic::{round_ratio, round_scaled};
 use crate::recover::faddeev_leverrier::{faddeev_leverrier, transfer_function};
 use crate::recover::{faddeev_leverrier_f64, transfer_function_f64, Method};
 use num_bigint::BigInt;
@@ -135,6 +135,38 @@ fn correct_rounding_of_scaled_integers() {
     );
     assert_eq!(round_scaled(&BigInt::from(-5), -1), Some(-2.5));
     assert_eq!(round_scaled(&BigInt::from(1), 5000), None);
+}
+
+#[test]
+fn correct_rounding_in_the_subnormal_range() {
+    let tiny = f64::from_bits(1); // 2^-1074
+                                  // (2^20 + 1/2) 2^-1074 + 2^-1126: above the tie, one rounding gives 2^20 + 1 quanta
+                                  // (rounding to 53 bits first would land on the tie and go to the even 2^20).
+    let v = (((BigInt::from(1u64 << 21) + 1) << 51usize) + 1, -1126i64);
+    assert_eq!(round_scaled(&v.0, v.1), Some((1048577.0) * tiny));
+    // Exact ties on the subnormal grid go to even; half the smallest subnormal goes to 0.
+    assert_eq!(round_scaled(&BigInt::from(5), -1075), Some(2.0 * tiny));
+    assert_eq!(round_scaled(&BigInt::from(7), -1075), Some(4.0 * tiny));
+    assert_eq!(round_scaled(&BigInt::from(1), -1075), Some(0.0));
+    assert_eq!(round_scaled(&BigInt::from(3), -1076), Some(tiny));
+    assert_eq!(round_scaled(&BigInt::from(-3), -1076), Some(-tiny));
+    assert_eq!(round_scaled(&BigInt::from(1), -3000), Some(0.0));
+    // The largest subnormal rounding up into the normal range.
+    let below = (BigInt::from(1u64 << 53) - 1, -1075i64); // (2^53 - 1) 2^-1075
+    assert_eq!(round_scaled(&below.0, below.1), Some(f64::MIN_POSITIVE));
+    // round_ratio: 1/3 correctly rounded, and 1/3 · 2^-1070 on the subnormal grid.
+    let (one, three) = (BigInt::from(1), BigInt::from(3));
+    assert_eq!(round_ratio(&one, &three, 0), Some(1.0 / 3.0));
+    assert_eq!(round_ratio(&one, &three, -1070), Some(5.0 * tiny)); // 16/3 = 5.33 quanta
+    assert_eq!(round_ratio(&-one.clone(), &three, -1070), Some(-5.0 * tiny));
+    assert_eq!(
+        round_ratio(&BigInt::from(5), &BigInt::from(2), -1074),
+        Some(2.0 * tiny)
+    ); // tie, even
+    assert_eq!(
+        round_ratio(&BigInt::from(7), &BigInt::from(2), -1074),
+        Some(4.0 * tiny)
+    );
 }
 
 fn spread_matrix(n: usize) -> Matrix<f64> {

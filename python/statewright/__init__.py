@@ -13,6 +13,7 @@ linear time-invariant models, with a Rust core.
 from ._api.batch import realize_batch, transfer_function_batch
 from ._api.identify import balanced_realization, gramians, hankel_singular_values, realize_markov
 from ._api.interop import from_scipy, realize_expression
+from ._api.multivariable import multivariable_canonical_form
 from ._api.parametric import parametric_transfer_function
 from ._api.realize import realize
 from ._api.recover import characteristic_polynomial, faddeev_leverrier, transfer_function
@@ -55,6 +56,7 @@ __all__ = [
     "ModelError",
     "Realization",
     "realize",
+    "multivariable_canonical_form",
     "faddeev_leverrier",
     "characteristic_polynomial",
     "transfer_function",

@@ -1,10 +1,12 @@
-//! Bindings of the Jordan (parallel) form, float and exact.
+//! Bindings of the Jordan (parallel) form and the Luenberger multivariable forms, float and exact.
 
 use super::convert::{
-    exact_out_vec, exact_quad, exact_vector, quad, vector_from, ExactIn, ExactOut, Quad,
+    array2, exact_model_from, exact_out_vec, exact_quad, exact_vector, model_from, quad,
+    vector_from, ExactIn, ExactOut, ModelIn, Quad,
 };
-use super::errors::run;
+use super::errors::{run, to_py};
 use crate::realize;
+use crate::realize::multivariable::{self, LuenbergerForm, MultivariableInfo};
 use numpy::PyReadonlyArray1;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
@@ -58,4 +60,64 @@ pub(crate) fn realize_jordan_exact(
         })
         .collect();
     Ok((exact_quad(ss), out))
+}
+
+fn luenberger(form: &str) -> PyResult<LuenbergerForm> {
+    match form {
+        "controller" => Ok(LuenbergerForm::Controller),
+        "observer" => Ok(LuenbergerForm::Observer),
+        other => Err(to_py(crate::error::ModelError::BadOption {
+            arg: "form",
+            found: other.to_string(),
+            allowed: "'controller', 'observer'",
+        })),
+    }
+}
+
+fn multivariable_info<'py>(
+    py: Python<'py>,
+    info: MultivariableInfo,
+) -> PyResult<Bound<'py, PyDict>> {
+    let d = PyDict::new(py);
+    d.set_item("indices", info.indices)?;
+    // ∞ only in exact mode, for a T too wide for float64 even after scaling: None.
+    d.set_item(
+        "condition",
+        info.condition.is_finite().then_some(info.condition),
+    )?;
+    d.set_item("residual", info.residual)?;
+    d.set_item("markov_error", info.markov_error)?;
+    d.set_item("tol", info.tol)?;
+    Ok(d)
+}
+
+#[pyfunction]
+#[pyo3(signature = (model, form, tol))]
+pub(crate) fn multivariable_form_float<'py>(
+    py: Python<'py>,
+    model: ModelIn<'py>,
+    form: &str,
+    tol: Option<f64>,
+) -> PyResult<(Quad<'py>, Bound<'py, PyDict>)> {
+    let which = luenberger(form)?;
+    let ss = model_from(&model)?;
+    let (out, info) = run(py, move || {
+        multivariable::multivariable_f64(&ss, which, tol)
+    })?;
+    let transform = array2(py, info.transform.clone())?;
+    let d = multivariable_info(py, info)?;
+    d.set_item("transform", transform)?;
+    Ok((quad(py, out, true)?, d))
+}
+
+#[pyfunction]
+pub(crate) fn multivariable_form_exact<'py>(
+    py: Python<'py>,
+    model: (ExactIn, ExactIn, ExactIn, ExactIn),
+    form: &str,
+) -> PyResult<(ExactQuadOut, Bound<'py, PyDict>)> {
+    let which = luenberger(form)?;
+    let ss = exact_model_from(model)?;
+    let (out, info) = run(py, move || multivariable::multivariable_exact(&ss, which))?;
+    Ok((exact_quad(out), multivariable_info(py, info)?))
 }

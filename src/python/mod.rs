@@ -37,6 +37,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(realize::realize_transfer_matrix_exact, m)?)?;
     m.add_function(wrap_pyfunction!(forms::realize_jordan_float, m)?)?;
     m.add_function(wrap_pyfunction!(forms::realize_jordan_exact, m)?)?;
+    m.add_function(wrap_pyfunction!(forms::multivariable_form_float, m)?)?;
+    m.add_function(wrap_pyfunction!(forms::multivariable_form_exact, m)?)?;
     // recover
     m.add_function(wrap_pyfunction!(recover::faddeev_leverrier_float, m)?)?;
     m.add_function(wrap_pyfunction!(recover::faddeev_leverrier_exact, m)?)?;

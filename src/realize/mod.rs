@@ -11,6 +11,7 @@
 //! | controller, observer | [`controller`] |
 //! | controllability, observability | [`krylov`] |
 //! | modal | [`modal`] (float only) |
+//! | Luenberger controller / observer forms of MIMO models | [`multivariable`] |
 //! | block_controller, block_observer (p × m transfer matrices) | [`transfer_matrix`] |
 
 pub mod controllable;
@@ -18,6 +19,7 @@ pub mod controller;
 pub mod jordan;
 pub mod krylov;
 pub mod modal;
+pub mod multivariable;
 pub mod roots;
 pub mod transfer_matrix;
 
@@ -162,6 +164,21 @@ pub fn realize_f64(
         (ss, Some(info))
     } else if form == Form::Jordan {
         (jordan::jordan_from_split(&split, None)?.0, None)
+    } else if matches!(form, Form::Controllability | Form::Observability) {
+        // The Markov parameters exactly from the dyadic data, rounded once.
+        let h = krylov::markov_parameters_f64(num, den)?;
+        let mut ss = krylov::controllability(&split);
+        if split.order() > 0 {
+            ss.c = Matrix::from_row_major(1, h.len(), h).expect("1 x n");
+        }
+        (
+            if form == Form::Observability {
+                ss.dual()
+            } else {
+                ss
+            },
+            None,
+        )
     } else {
         (companion_from_split(&split, form)?, None)
     };

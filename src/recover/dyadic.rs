@@ -25,8 +25,7 @@
 //! recursion (`cargo run --release --example time_exact`). A request
 //! whose estimated time exceeds the exact-arithmetic budget
 //! ([`super::rational::EXACT_TIME_BUDGET_SECONDS`]) is refused with `TooLarge` before any
-//! work. Results in the subnormal range may be rounded twice (to 53 bits, then to the
-//! subnormal grid).
+//! work. Results in the subnormal range are rounded once, to the subnormal grid itself.
 
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
@@ -35,6 +34,7 @@ use crate::recover::modular;
 use crate::recover::rational::{self, EXACT_TIME_BUDGET_SECONDS};
 use crate::state_space::StateSpace;
 use num_bigint::{BigInt, Sign};
+use num_integer::Integer;
 use num_traits::{ToPrimitive, Zero};
 
 /// An integer matrix M with a power-of-two scale: the value is `M · 2^shift`.
@@ -44,7 +44,7 @@ pub struct DyadicMatrix {
 }
 
 /// `x = sign · mant · 2^exp` with mant odd (or x = 0).
-fn decompose(x: f64) -> (i8, u64, i64) {
+pub(crate) fn decompose(x: f64) -> (i8, u64, i64) {
     if x == 0.0 {
         return (0, 0, 0);
     }
@@ -94,6 +94,10 @@ impl DyadicMatrix {
 }
 
 /// `value · 2^exp` rounded to the nearest float64 (ties to even); `None` on overflow.
+///
+/// Rounded once, also in the subnormal range: the number of bits kept is 53 for a normal
+/// result and `bits + exp + 1074` (the bits above the subnormal quantum 2⁻¹⁰⁷⁴) below
+/// 2⁻¹⁰²², so the scaling that follows is exact.
 pub fn round_scaled(value: &BigInt, exp: i64) -> Option<f64> {
     if Zero::is_zero(value) {
         return Some(0.0);
@@ -101,23 +105,54 @@ pub fn round_scaled(value: &BigInt, exp: i64) -> Option<f64> {
     let negative = value.sign() == Sign::Minus;
     let magnitude = value.magnitude();
     let bits = magnitude.bits() as i64;
-    let (top, exp) = if bits <= 53 {
+    // The value is in [2^(bits-1+exp), 2^(bits+exp)); bits above 2^-1074 for a subnormal.
+    let keep = 53.min(bits + exp + 1074);
+    let (top, exp) = if bits <= keep {
         (magnitude.to_u64().expect("<= 53 bits"), exp)
     } else {
-        let drop = (bits - 53) as u64;
-        let mut top = (magnitude >> drop).to_u64().expect("53 bits");
-        let remainder = magnitude - (num_bigint::BigUint::from(top) << drop);
+        let drop = (bits - keep) as u64; // >= 1; keep <= 0 leaves top = 0 before rounding
+        let top_big = magnitude >> drop;
+        let mut top = top_big.to_u64().expect("<= 53 bits");
+        let remainder = magnitude - (top_big << drop);
         let half = num_bigint::BigUint::from(1u8) << (drop - 1);
         if remainder > half || (remainder == half && top & 1 == 1) {
             top += 1;
         }
         (top, exp + drop as i64)
     };
+    // top < 2^54 and top · 2^exp is a float64 (or overflows): every step of ldexp is exact.
     let x = ldexp(top as f64, exp);
     if x.is_infinite() {
         return None;
     }
     Some(if negative { -x } else { x })
+}
+
+/// `(p / q) · 2^exp` rounded to the nearest float64 (ties to even), once, also in the
+/// subnormal range; `None` on overflow. `q` must be nonzero.
+///
+/// The quotient is formed with at least 54 bits and a sticky bit for the remainder, so the
+/// rounding of [`round_scaled`] (which drops at least two bits) decides as the exact value.
+pub fn round_ratio(p: &BigInt, q: &BigInt, exp: i64) -> Option<f64> {
+    if Zero::is_zero(p) {
+        return Some(0.0);
+    }
+    let negative = (p.sign() == Sign::Minus) != (q.sign() == Sign::Minus);
+    let (p, q) = (
+        BigInt::from(p.magnitude().clone()),
+        BigInt::from(q.magnitude().clone()),
+    );
+    let shift = 55 - (p.bits() as i64 - q.bits() as i64);
+    let (num, den) = if shift >= 0 {
+        (p << shift as u64, q)
+    } else {
+        (p, q << (-shift) as u64)
+    };
+    let (quot, rem) = num.div_rem(&den);
+    let sticky = u8::from(!Zero::is_zero(&rem));
+    let m = (quot << 1u8) + BigInt::from(sticky);
+    let m = if negative { -m } else { m };
+    round_scaled(&m, exp - shift - 1)
 }
 
 /// `x · 2^e` without intermediate overflow.

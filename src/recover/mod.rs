@@ -9,6 +9,8 @@
 //!   ([`certified`]), accepted when the bound certifies every result to [`CERTIFIED_TOLERANCE`]
 //!   relative before the final rounding to float64 (so the float64 result is within
 //!   `0.5 + 1/8` units in the last place: correctly rounded except within 1/8 ulp of a tie);
+//!   not accepted when a result is below 2⁻⁹⁶⁹ in magnitude (near the subnormal range the
+//!   double-double bound does not hold), so subnormal results are exact, rounded once;
 //! * the exact characteristic polynomial and transfer matrix of the float data, rounded once
 //!   ([`dyadic`], by the multi-modular Hessenberg method of [`modular`]; the adjugates by the
 //!   exact recursion): correctly rounded results whatever the conditioning, refused only
@@ -33,6 +35,10 @@ use std::str::FromStr;
 /// Relative accuracy (per coefficient, before rounding to float64) the double-double path
 /// must certify to be accepted: 2⁻⁵⁶ ≈ 1.4e-17, an eighth of float64's unit roundoff.
 pub const CERTIFIED_TOLERANCE: f64 = 1.0 / 72_057_594_037_927_936.0;
+
+/// Smallest magnitude the certified double-double result is accepted at: 2⁻⁹⁶⁹ = 2⁻¹⁰²² · 2⁵³
+/// (below it the low word of a double-double leaves the normal range).
+const DOUBLE_DOUBLE_NORMAL_FLOOR: f64 = 2.2250738585072014e-308 * 9007199254740992.0;
 
 /// Largest order the recursion accepts (it costs about n⁴ operations: a few seconds in
 /// double-double at this size).
@@ -186,7 +192,16 @@ fn fast_path(
     }
     let seq = certified::certified_double_double(a.as_slice(), n, with_adjugates, model);
     let worst = seq.worst_relative_bound();
-    if seq.is_finite() && worst <= CERTIFIED_TOLERANCE {
+    // Below 2^-969 the low word of a double-double is subnormal or lost: the relative bound
+    // does not hold there, and the rounding to float64 would not be correct. Such results
+    // go to the exact evaluation, which rounds them once to the subnormal grid.
+    let near_subnormal = seq
+        .coeffs
+        .iter()
+        .chain(&seq.adjugates)
+        .chain(&seq.numerator)
+        .any(|v| *v != 0.0 && v.abs() < DOUBLE_DOUBLE_NORMAL_FLOOR);
+    if seq.is_finite() && worst <= CERTIFIED_TOLERANCE && !near_subnormal {
         let acc = Accuracy {
             method: "certified double-double recursion",
             relative_error_bound: worst + FLOAT_UNIT,

@@ -51,7 +51,9 @@ def realize(
         ``"observable_canonical"`` (its transpose), ``"controller"`` (first row
         ``[-a_{n-1}, ..., -a_0]``, ones on the subdiagonal, ``B = e_1``,
         ``C = [c_{n-1}, ..., c_0]``), ``"observer"`` (its transpose), ``"controllability"``
-        (controllability matrix the identity, ``C = [h_1, ..., h_n]``),
+        (controllability matrix the identity, ``C = [h_1, ..., h_n]``, the Markov
+        parameters of the float data computed exactly and correctly rounded; the form is
+        ill-conditioned at high order, its coordinates being the Krylov basis),
         ``"observability"`` (its transpose), ``"modal"`` (real block diagonal of the
         poles, ``[[s, w], [-w, s]]`` per complex pair, by ascending real part; float only)
         or ``"jordan"`` (the real Jordan, or parallel, form: one block per distinct pole, a
@@ -97,8 +99,9 @@ def realize(
         (relative separation below ``sqrt(eps)``; the message names both poles) or with
         ``exact=True``; ``jordan`` when merging the poles within ``tol`` changes the
         transfer function by more than ``max(tol, sqrt(eps))`` relative; ``tol`` with
-        another form; a float in exact mode; an order above 4096 (1024 for ``modal`` and
-        float ``jordan``, 256 for exact ``jordan``), refused before anything of that size
+        another form; a float in exact mode; an order above 4096 (1024 for ``modal``,
+        float ``jordan``, float ``controllability`` and ``observability``, 256 for exact
+        ``jordan``), refused before anything of that size
         is allocated.
 
     Notes
