@@ -23,7 +23,7 @@ EXPECTED_FIGURES = {
     "02_hidden_modes.ipynb": 4,  # staircase, pole map, frequency response, controllability matrix
     "03_fleet_batch.ipynb": 4,  # distribution, what the statistic predicts, step and frequency response
     "04_identified_impulse_response.ipynb": 5,  # two singular-value sets, Hankel, error, frequency, impulse
-    "05_jordan_form_by_hand.ipynb": 2,  # impulse response block by block, pole and zero map
+    "05_jordan_and_multivariable_forms.ipynb": 3,  # impulse response per block, pole-zero map, singular values
     "06_identified_fleet_in_seconds.ipynb": 3,  # zero distribution, pole and zero map, fleet frequency response
     "07_parametric_two_mass_drive.ipynb": 1,  # frequency response over the shaft stiffness
 }
