@@ -227,7 +227,8 @@ def transfer_function(
     if method == "hessenberg":
         num, den, accuracy = compute_hessenberg.transfer_function_hessenberg(*v.float_model(a, b, c, d))
     else:
-        num, den, accuracy = compute.transfer_function_float(*v.float_model(a, b, c, d), method)
+        # the core copies the matrices and checks their finiteness (same message)
+        num, den, accuracy = compute.transfer_function_float(*v.float_model_for_core(a, b, c, d), method)
     if v.check_flag(return_accuracy, "return_accuracy"):
         return num, den, accuracy
     return num, den
