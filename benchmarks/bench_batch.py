@@ -6,7 +6,8 @@ Writes benchmarks/results/batch.md (the README table) and benchmarks/results/sca
 P1: N random order-8 SISO models, transfer function -> realization -> transfer function:
     statewright's batch functions vs a Python loop over scipy.signal.tf2ss / ss2tf
     (the SciPy loop is timed on a subset and scaled, since it takes minutes for 100,000).
-P2: one order-4 realization call, statewright.realize vs scipy.signal.tf2ss.
+P2: one order-4 realization call, statewright.realize vs scipy.signal.tf2ss (arrays, then lists).
+P3: one order-4 transfer-function call, statewright.transfer_function vs scipy.signal.ss2tf.
 Scaling: batch time vs batch size and vs order.
 """
 
@@ -73,6 +74,19 @@ def p2() -> dict:
 
     t_ours = best_of(repeat(sw.realize), 5) / loops
     t_theirs = best_of(repeat(signal.tf2ss), 5) / loops
+    n_list, d_list = n0.tolist(), d0.tolist()  # plain lists, as typed in a notebook
+    t_lists = best_of(lambda: [sw.realize(n_list, d_list) for _ in range(loops)], 5) / loops
+    t_theirs_lists = best_of(lambda: [signal.tf2ss(n_list, d_list) for _ in range(loops)], 5) / loops
+    return {"ours": t_ours, "scipy": t_theirs, "ours_lists": t_lists, "scipy_lists": t_theirs_lists}
+
+
+def p3() -> dict:
+    """One order-4 transfer-function recovery (correctly rounded) vs scipy.signal.ss2tf."""
+    num, den = random_models(1, 4, seed=3)
+    a, b, c, d = sw.realize(num[0], den[0])
+    loops = 5000
+    t_ours = best_of(lambda: [sw.transfer_function(a, b, c, d) for _ in range(loops)], 5) / loops
+    t_theirs = best_of(lambda: [signal.ss2tf(a, b, c, d) for _ in range(loops)], 5) / loops
     return {"ours": t_ours, "scipy": t_theirs}
 
 
@@ -106,6 +120,7 @@ def main() -> None:
     machine = f"{os.cpu_count()} cores, {platform.machine()}, Python {platform.python_version()}, numpy {np.__version__}, SciPy {scipy.__version__}"
     r1 = p1(count, scipy_subset=1000 if args.quick else 3000)
     r2 = p2()
+    r3 = p3()
     by_size, by_order = scaling(args.quick)
 
     lines = [
@@ -115,6 +130,10 @@ def main() -> None:
         "| --- | --- | --- | --- |",
         f"| P1: {r1['count']:,} order-8 models, tf -> ss -> tf | {r1['ours']:.2f} s | {r1['scipy']:.1f} s | {r1['scipy'] / r1['ours']:.0f}x |",
         f"| P2: one order-4 realization | {r2['ours'] * 1e6:.1f} us | {r2['scipy'] * 1e6:.1f} us | {r2['scipy'] / r2['ours']:.1f}x |",
+        f"| P2, coefficients as lists | {r2['ours_lists'] * 1e6:.1f} us | {r2['scipy_lists'] * 1e6:.1f} us | "
+        f"{r2['scipy_lists'] / r2['ours_lists']:.1f}x |",
+        f"| P3: one order-4 transfer function | {r3['ours'] * 1e6:.1f} us | {r3['scipy'] * 1e6:.1f} us | "
+        f"{r3['scipy'] / r3['ours']:.1f}x |",
         "",
         "| batch size (order 8) | time [s] | per model [us] |",
         "| --- | --- | --- |",
