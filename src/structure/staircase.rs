@@ -236,11 +236,79 @@ pub fn controllability_staircase(
     tol: Option<f64>,
 ) -> Result<Staircase> {
     check_tol(tol)?;
-    let t = match tol {
-        Some(t) => Tolerance::Absolute(t),
-        None => Tolerance::Relative(default_factor(a.rows())),
+    match tol {
+        Some(t) => staircase_with(a, b, c, Tolerance::Absolute(t), None),
+        None => {
+            let f0 = default_factor(a.rows());
+            let st0 = staircase_with(a, b, c, Tolerance::Relative(f0), None)?;
+            Ok(verified_search(a, b, c, st0, f0))
+        }
+    }
+}
+
+/// The default's search for rounding-level values amplified above `n² eps` along the chain
+/// of steps: candidate factors from the kept singular values in `(n² eps, sqrt(eps)]`
+/// (largest first, at most four per result and eight in all); a candidate with a smaller
+/// reached dimension is accepted only when its split reproduces the Krylov sequence:
+/// the Markov parameters of `(A, B, I)` against `(A_c, B_c, Q_c)`
+/// ([`super::verify::markov_residual`] at most [`super::verify::markov_tolerance`]), i.e.
+/// `A^k B` stays in the reached subspace to rounding level for `k < 2n`. This is a check of
+/// a candidate, not a rank decision from the controllability matrix.
+fn verified_search(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: Option<&Matrix<f64>>,
+    st0: Staircase,
+    f0: f64,
+) -> Staircase {
+    let n = a.rows();
+    if n == 0 {
+        return st0;
+    }
+    let full = StateSpace {
+        a: a.clone(),
+        b: b.clone(),
+        c: Matrix::identity(n),
+        d: Matrix::zeros(n, b.cols()),
     };
-    staircase_with(a, b, c, t, None)
+    let vt = super::verify::markov_tolerance(n);
+    let mut frontier = super::minimal::candidate_factors(&[&st0], f0);
+    let mut best = st0;
+    let mut tries = 0;
+    while !frontier.is_empty() && tries < super::minimal::MAX_TRIES {
+        let f = frontier.remove(0);
+        tries += 1;
+        let Ok(st) = staircase_with(a, b, c, Tolerance::Relative(f), None) else {
+            continue;
+        };
+        if st.rank >= best.rank {
+            continue;
+        }
+        let k = st.rank;
+        let reduced = StateSpace {
+            a: leading_block(&st.a, k, k),
+            b: leading_block(&st.b, k, b.cols()),
+            c: super::columns(&st.q, 0, k),
+            d: Matrix::zeros(n, b.cols()),
+        };
+        let r = super::verify::markov_residual(&full, &reduced);
+        if r <= vt {
+            frontier = super::minimal::candidate_factors(&[&st], f);
+            best = st;
+        }
+    }
+    best
+}
+
+fn leading_block(m: &Matrix<f64>, rows: usize, cols: usize) -> Matrix<f64> {
+    Matrix::from_row_major(
+        rows,
+        cols,
+        (0..rows * cols)
+            .map(|x| *m.get(x / cols, x % cols))
+            .collect(),
+    )
+    .expect("block")
 }
 
 /// The controllability staircase with the decisions judged by `t`.
