@@ -205,6 +205,13 @@ fn decompose(
         Tolerance::Relative(f) => format!("the default tol (relative factor {f:.3e})"),
     };
     let sc = staircase_with(&bal.a, &bal.b, Some(&bal.c), t, None)?;
+    // the eigenvector-guided split of the default (PBH test, verified; see the staircase)
+    let sc = match t {
+        Tolerance::Relative(f) if f > 0.0 => {
+            super::staircase::eigenvector_split(&bal.a, &bal.b, Some(&bal.c), f, &sc)?.unwrap_or(sc)
+        }
+        _ => sc,
+    };
     let nc = sc.rank;
     let r_basis = columns(&sc.q, 0, nc);
     let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), nc);

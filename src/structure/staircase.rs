@@ -241,7 +241,8 @@ pub fn controllability_staircase(
         None => {
             let f0 = default_factor(a.rows());
             let st0 = staircase_with(a, b, c, Tolerance::Relative(f0), None)?;
-            Ok(verified_search(a, b, c, st0, f0))
+            let st = verified_search(a, b, c, st0, f0);
+            Ok(eigenvector_split(a, b, c, f0, &st)?.unwrap_or(st))
         }
     }
 }
@@ -298,6 +299,176 @@ fn verified_search(
         }
     }
     best
+}
+
+/// Relative size below which a kept singular value makes the chain suspicious enough for
+/// the eigenvector check (random controllable chains stay above it).
+const SUSPICIOUS_STEP: f64 = 1e-3;
+/// A mode is a candidate for the uncontrollable part when `|vᵀ B̂| <= this · ‖v‖ ‖B̂‖_F`
+/// (v a left eigenvector; the PBH eigenvector test).
+const PBH_CANDIDATE: f64 = 1e-8;
+
+/// Eigenvector-guided split (PBH test): when the staircase reached more states than a
+/// left-eigenvector count says are controllable, the left eigenvectors `v` of the modes
+/// with `|vᵀ B̂| <= 1e-8 ‖v‖ ‖B̂‖_F` span a candidate left-invariant subspace `Q_2` with
+/// `Q_2ᵀ B ≈ 0`; the split `[Q_1, Q_2]` is accepted only when it reproduces the Krylov
+/// sequence (as in [`verified_search`]). The controllable part then gets its own
+/// staircase; the split is recorded as a final step whose value is `‖Q_2ᵀ A Q_1‖_F`.
+/// Only tried when some kept step value is below `1e-3` relative (a long, weak chain).
+pub(crate) fn eigenvector_split(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: Option<&Matrix<f64>>,
+    f0: f64,
+    st: &Staircase,
+) -> Result<Option<Staircase>> {
+    let n = a.rows();
+    if n < 2 || b.cols() == 0 || st.rank == 0 {
+        return Ok(None);
+    }
+    let suspicious = st.steps.iter().any(|step| {
+        let scale = step.threshold / f0;
+        step.threshold > 0.0
+            && step.singular_values[..step.kept]
+                .iter()
+                .any(|&v| v / scale < SUSPICIOUS_STEP)
+    });
+    if !suspicious || range_scale(&[a, b]) != 1.0 {
+        return Ok(None);
+    }
+    let e = column_exponents(b);
+    let b_hat = scale_columns(b, &e, 1);
+    let at = super::to_faer(&a.transpose());
+    let Ok(eig) = at.eigen() else {
+        return Ok(None);
+    };
+    let (u, values) = (eig.U(), eig.S().column_vector());
+    let nb = frobenius(&b_hat);
+    let bh = super::to_faer(&b_hat);
+    let mut cols: Vec<Vec<f64>> = Vec::new();
+    for i in 0..n {
+        let lam = values[i];
+        if lam.im < 0.0 {
+            continue; // its conjugate stands for the pair
+        }
+        let v: Vec<faer::c64> = (0..n).map(|k| u[(k, i)]).collect();
+        let vn = v
+            .iter()
+            .map(|z| z.re * z.re + z.im * z.im)
+            .sum::<f64>()
+            .sqrt();
+        let mut worst: f64 = 0.0;
+        for j in 0..b.cols() {
+            let (mut re, mut im) = (0.0, 0.0);
+            for k in 0..n {
+                re += v[k].re * bh[(k, j)];
+                im += v[k].im * bh[(k, j)];
+            }
+            worst = worst.max((re * re + im * im).sqrt());
+        }
+        if worst <= PBH_CANDIDATE * vn * nb {
+            cols.push(v.iter().map(|z| z.re).collect());
+            if lam.im > 0.0 {
+                cols.push(v.iter().map(|z| z.im).collect());
+            }
+        }
+    }
+    let ku = cols.len();
+    if ku == 0 || n - ku >= st.rank {
+        return Ok(None);
+    }
+    let w = Matrix::from_row_major(n, ku, (0..n * ku).map(|x| cols[x % ku][x / ku]).collect())
+        .expect("n x ku");
+    let Ok(svd) = super::to_faer(&w).svd() else {
+        return Ok(None);
+    };
+    let sv = svd.S().column_vector();
+    if !(sv[ku - 1] > 1e-8 * sv[0]) {
+        return Ok(None);
+    }
+    let uu = super::from_faer(svd.U());
+    let q2 = super::columns(&uu, 0, ku);
+    let q1 = super::columns(&uu, ku, n);
+    let nc = n - ku;
+    // the controllable part and its own staircase, thresholds from the whole pair
+    let a11 = q1.transpose().matmul(a).matmul(&q1);
+    let b1 = q1.transpose().matmul(b);
+    let c1 = c.map(|c| c.matmul(&q1));
+    let inner = staircase_with(
+        &a11,
+        &b1,
+        c1.as_ref(),
+        Tolerance::Relative(f0),
+        Some((a, b)),
+    )?;
+    let qc = q1.matmul(&inner.q);
+    let k = inner.rank;
+    let reduced = StateSpace {
+        a: leading_block(&inner.a, k, k),
+        b: leading_block(&inner.b, k, b.cols()),
+        c: super::columns(&qc, 0, k),
+        d: Matrix::zeros(n, b.cols()),
+    };
+    let full = StateSpace {
+        a: a.clone(),
+        b: b.clone(),
+        c: Matrix::identity(n),
+        d: Matrix::zeros(n, b.cols()),
+    };
+    if super::verify::markov_residual(&full, &reduced) > super::verify::markov_tolerance(n) {
+        return Ok(None);
+    }
+    // assemble Q = [Q_1 Q_c, Q_2] and the transformed matrices
+    let q = super::hstack(&[&qc, &q2], n);
+    let mut ta = q.transpose().matmul(a).matmul(&q);
+    let mut tb = q.transpose().matmul(b);
+    let coupling: Vec<f64> = (nc..n)
+        .flat_map(|i| (0..nc).map(move |j| (i, j)))
+        .map(|(i, j)| *ta.get(i, j))
+        .collect();
+    let coupling_norm = crate::matrix::frobenius_norm(&coupling);
+    for i in 0..nc {
+        for j in 0..nc {
+            ta.set(i, j, *inner.a.get(i, j));
+        }
+        for j in 0..b.cols() {
+            tb.set(i, j, *inner.b.get(i, j));
+        }
+    }
+    for i in nc..n {
+        for j in 0..nc {
+            ta.set(i, j, 0.0);
+        }
+        for j in 0..b.cols() {
+            tb.set(i, j, 0.0);
+        }
+    }
+    let tc = c.map(|c| c.matmul(&q));
+    let mut steps = inner.steps.clone();
+    let na = frobenius(a);
+    steps.push(StepRecord {
+        singular_values: vec![coupling_norm],
+        kept: 0,
+        threshold: coupling_norm.max(st.tol),
+        backward_error: if coupling_norm == 0.0 {
+            0.0
+        } else {
+            coupling_norm / na
+        },
+    });
+    let mut out = Staircase {
+        a: ta,
+        b: tb,
+        c: tc,
+        q,
+        blocks: inner.blocks.clone(),
+        rank: k,
+        steps,
+        tol: st.tol,
+        split_residual: [0.0, 0.0],
+    };
+    out.split_residual = split_residual(a, &b_hat, &out);
+    Ok(Some(out))
 }
 
 fn leading_block(m: &Matrix<f64>, rows: usize, cols: usize) -> Matrix<f64> {
