@@ -34,8 +34,9 @@
 //! If the default result fails it, the reduction by exact zeros only (tol 0) is tried, and
 //! if that fails too the call is refused with `Unverified`. With an explicit tol (absolute,
 //! on the balanced model, every step) the result is refused when its residual exceeds
-//! `max(200 n² eps, 100 tol / min(‖A‖_F, ‖B‖_F, ‖C‖_F))` (the balanced norms): removing states
-//! whose effect is far above what tol allows is not a reduction at that tol.
+//! `max(200 n² eps, min(1/2, 100 tol / min(‖A‖_F, ‖B‖_F, ‖C‖_F)))` (the balanced norms):
+//! removing states whose effect is far above what tol allows (or more than half of the
+//! response) is not a reduction at that tol.
 //!
 //! # References
 //! R. E. Kalman, "Mathematical description of linear dynamical systems", SIAM J. Control 1
@@ -151,7 +152,7 @@ pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Min
             .map(|m| frobenius(m))
             .filter(|v| *v > 0.0)
             .fold(f64::INFINITY, f64::min);
-        let allowed = vt.max(100.0 * x / norm);
+        let allowed = vt.max((100.0 * x / norm).min(0.5));
         if m.markov_residual > allowed {
             return Err(ModelError::Unverified {
                 what: "the minimal realization",

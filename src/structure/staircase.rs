@@ -18,9 +18,17 @@
 //!
 //! # Numerical aspects
 //! Backward stable: the result is the exact staircase form of `(A + E, B + F)` with
-//! `‖E‖, ‖F‖` of order `tol + n eps ‖(A, B)‖` (Van Dooren 1981). Default
-//! `tol = n² eps max(‖A‖_F, ‖B‖_F)`. The decisions, and so the result, are invariant under
-//! orthogonal changes of coordinates (up to rounding). [`super::minimal`] and
+//! `‖E‖, ‖F‖` of order `tol + n eps ‖(A, B)‖` (Van Dooren 1981). Default (scale
+//! invariant, [`Tolerance::Relative`]): the first step against `n² eps ‖B̂‖_F` (B with its
+//! columns scaled by powers of two to one exponent), later steps against `n² eps ‖A‖_F`;
+//! then a verified search for rounding-level values amplified along the chain (candidate
+//! factors up to `sqrt(eps)`, and an eigenvector-guided split by the PBH eigenvector test),
+//! a smaller controllable part being accepted only when it reproduces the Krylov sequence
+//! `A^k B`, `k < 2n`, to `200 n² eps` (a check of a candidate split, not a rank decision
+//! from the controllability matrix). Every step records its threshold and backward error,
+//! and the final split its a-posteriori residual from the returned Q. The decisions are
+//! invariant under input scaling, uniform state scaling and orthogonal changes of
+//! coordinates (up to rounding). [`super::minimal`] and
 //! [`super::kalman`] work on a balanced copy instead (smaller rounding errors for
 //! companion-like models). The singular values every decision was made on are
 //! kept ([`StepRecord`]), so a caller sees how close each one was. Data whose largest entry
