@@ -311,7 +311,7 @@ fn verified_search(
 
 /// Relative size below which a kept singular value makes the chain suspicious enough for
 /// the eigenvector check (random controllable chains stay above it).
-const SUSPICIOUS_STEP: f64 = 1e-3;
+const SUSPICIOUS_STEP: f64 = 1e-2;
 /// A mode is a candidate for the uncontrollable part when `|vᵀ B̂| <= this · ‖v‖ ‖B̂‖_F`
 /// (v a left eigenvector; the PBH eigenvector test).
 const PBH_CANDIDATE: f64 = 1e-8;
@@ -322,7 +322,7 @@ const PBH_CANDIDATE: f64 = 1e-8;
 /// `Q_2ᵀ B ≈ 0`; the split `[Q_1, Q_2]` is accepted only when it reproduces the Krylov
 /// sequence (as in [`verified_search`]). The controllable part then gets its own
 /// staircase; the split is recorded as a final step whose value is `‖Q_2ᵀ A Q_1‖_F`.
-/// Only tried when some kept step value is below `1e-3` relative (a long, weak chain).
+/// Only tried when some kept step value is below `1e-2` relative (a long, weak chain).
 pub(crate) fn eigenvector_split(
     a: &Matrix<f64>,
     b: &Matrix<f64>,

@@ -94,7 +94,7 @@ def controllability_staircase(a: Any, b: Any, c: Any = None, *, tol: Optional[fl
         then searches for rounding-level values that the chain of steps amplified: candidate
         factors from the kept values between ``n**2 * eps`` and ``sqrt(eps)`` relative, and
         an eigenvector-guided split (PBH test ``|v^T B_hat| <= 1e-8 ||v|| ||B_hat||_F`` for
-        left eigenvectors v, tried when a kept value is below ``1e-3`` relative); a smaller
+        left eigenvectors v, tried when a kept value is below ``1e-2`` relative); a smaller
         controllable part is accepted only when it reproduces ``A^k B`` for ``k < 2n`` to
         ``200 n**2 eps`` relative. Decisions do not change when the inputs are scaled or all
         states by one factor, nor (up to rounding) under orthogonal coordinates.
