@@ -1,7 +1,11 @@
-"""Benchmark: controllability staircase vs one numpy SVD of an n x n matrix, same run.
+"""Benchmark: the structure routines' verification cost, beside scipy.linalg, same run.
 
 Run: python benchmarks/bench_staircase.py
-Prints a Markdown table of median times and ratios (staircase / SVD).
+Prints a Markdown table of median times: the controllability staircase and the minimal
+realization at their default tol (scale-invariant thresholds, verified candidate search,
+eigenvector-guided split, Markov-parameter check) and with an explicit tol (one pass, the
+version-1 path), and scipy.linalg's Hessenberg reduction and SVD of the same A (comparable
+orthogonal O(n^3) work). The ratio default / explicit is the cost of the extra checks.
 """
 
 from __future__ import annotations
@@ -9,26 +13,51 @@ from __future__ import annotations
 import os
 
 import numpy as np
+import scipy.linalg
 
 import statewright as sw
 from timing import median_time
 
 
+def cases(rng):
+    for n in (50, 100, 200):
+        a = rng.standard_normal((n, n)) / np.sqrt(n)
+        yield "random, m=5", n, a, rng.standard_normal((n, 5))
+        yield "random, m=1", n, a, rng.standard_normal((n, 1))
+        # a planted uncontrollable half in random orthogonal coordinates (m = 1)
+        nc = n // 2
+        ap = rng.standard_normal((n, n)) / np.sqrt(n)
+        ap[nc:, :nc] = 0.0
+        bp = np.zeros((n, 1))
+        bp[:nc] = rng.standard_normal((nc, 1))
+        q, _ = np.linalg.qr(rng.standard_normal((n, n)))
+        yield "planted half, m=1", n, q @ ap @ q.T, q @ bp
+
+
 def main() -> None:
     rng = np.random.default_rng(0)
-    print(f"machine: {os.cpu_count()} cores; numpy {np.__version__}")
-    print("| n | m | staircase [ms] | numpy SVD n x n [ms] | ratio |")
-    print("| --- | --- | --- | --- | --- |")
-    for n in (50, 100, 200):
-        m = 5
-        a = rng.standard_normal((n, n))
-        b = rng.standard_normal((n, m))
-        repeat = 30 if n < 200 else 15
-        sw.controllability_staircase(a, b)  # warm-up
-        np.linalg.svd(a)
-        t_s = median_time(lambda: sw.controllability_staircase(a, b), repeat)
-        t_svd = median_time(lambda: np.linalg.svd(a), repeat)
-        print(f"| {n} | {m} | {t_s * 1e3:.2f} | {t_svd * 1e3:.2f} | {t_s / t_svd:.2f} |")
+    eps = np.finfo(float).eps
+    print(f"machine: {os.cpu_count()} cores; numpy {np.__version__}, scipy {scipy.__version__}")
+    print(
+        "| case | n | staircase default [ms] | explicit tol [ms] | ratio | minimal default [ms] "
+        "| explicit tol [ms] | ratio | scipy hessenberg [ms] | scipy svd [ms] |"
+    )
+    print("| --- | --- | --- | --- | --- | --- | --- | --- | --- | --- |")
+    for name, n, a, b in cases(rng):
+        c = rng.standard_normal((2, n))
+        d = np.zeros((2, b.shape[1]))
+        tol = n * n * eps * max(np.linalg.norm(a), np.linalg.norm(b))
+        repeat = 9 if n < 200 else 5
+        t_sd = median_time(lambda: sw.controllability_staircase(a, b), repeat)
+        t_se = median_time(lambda: sw.controllability_staircase(a, b, tol=tol), repeat)
+        t_md = median_time(lambda: sw.minimal_realization(a, b, c, d), repeat)
+        t_me = median_time(lambda: sw.minimal_realization(a, b, c, d, tol=tol), repeat)
+        t_h = median_time(lambda: scipy.linalg.hessenberg(a, calc_q=True), repeat)
+        t_v = median_time(lambda: scipy.linalg.svd(a), repeat)
+        print(
+            f"| {name} | {n} | {t_sd * 1e3:.2f} | {t_se * 1e3:.2f} | {t_sd / t_se:.2f} | {t_md * 1e3:.2f} "
+            f"| {t_me * 1e3:.2f} | {t_md / t_me:.2f} | {t_h * 1e3:.2f} | {t_v * 1e3:.2f} |"
+        )
 
 
 if __name__ == "__main__":

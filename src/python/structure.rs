@@ -65,7 +65,8 @@ fn check_krylov_shapes<T: crate::scalar::Scalar>(a: &Matrix<T>, b: &Matrix<T>) -
     Ok(())
 }
 
-/// (A, B, C or None, Q, blocks, rank, singular values per step, kept per step, tol)
+/// (A, B, C or None, Q, blocks, rank, singular values per step, kept per step, tol,
+/// threshold per step, backward error per step, split residual [A, B])
 type StaircaseOut<'py> = (
     Bound<'py, PyAny>,
     Bound<'py, PyAny>,
@@ -76,6 +77,9 @@ type StaircaseOut<'py> = (
     Vec<Bound<'py, PyAny>>,
     Vec<usize>,
     f64,
+    Vec<f64>,
+    Vec<f64>,
+    [f64; 2],
 );
 
 fn staircase_out<'py>(py: Python<'py>, s: staircase::Staircase) -> PyResult<StaircaseOut<'py>> {
@@ -85,10 +89,14 @@ fn staircase_out<'py>(py: Python<'py>, s: staircase::Staircase) -> PyResult<Stai
     };
     let mut sv = Vec::with_capacity(s.steps.len());
     let mut kept = Vec::with_capacity(s.steps.len());
+    let mut thresholds = Vec::with_capacity(s.steps.len());
+    let mut backward = Vec::with_capacity(s.steps.len());
     for step in s.steps {
         let k = step.singular_values.len();
         sv.push(array_nd(py, step.singular_values, &[k])?);
         kept.push(step.kept);
+        thresholds.push(step.threshold);
+        backward.push(step.backward_error);
     }
     Ok((
         array2(py, s.a)?,
@@ -100,6 +108,9 @@ fn staircase_out<'py>(py: Python<'py>, s: staircase::Staircase) -> PyResult<Stai
         sv,
         kept,
         s.tol,
+        thresholds,
+        backward,
+        s.split_residual,
     ))
 }
 
@@ -149,18 +160,28 @@ pub(crate) fn minimal_realization<'py>(
     py: Python<'py>,
     model: ModelIn<'py>,
     tol: Option<f64>,
-) -> PyResult<(Quad<'py>, StaircaseOut<'py>, StaircaseOut<'py>)> {
+) -> PyResult<(Quad<'py>, StaircaseOut<'py>, StaircaseOut<'py>, [f64; 3])> {
     let ss = model_from(&model)?;
     let m = run(py, move || minimal::minimal_realization(&ss, tol))?;
     Ok((
         quad(py, m.realization, false)?,
         staircase_out(py, m.controllability)?,
         staircase_out(py, m.observability)?,
+        [m.markov_residual, m.markov_tolerance, m.factor],
     ))
 }
 
-/// (A, B, C, D), T, sizes, condition of T, pattern residual
-type KalmanOut<'py> = (Quad<'py>, Bound<'py, PyAny>, [usize; 4], f64, f64);
+/// (A, B, C, D), T, sizes, condition of T, pattern residual, [zeroed B, zeroed C, Markov
+/// residual, factor], the three staircases
+type KalmanOut<'py> = (
+    Quad<'py>,
+    Bound<'py, PyAny>,
+    [usize; 4],
+    f64,
+    f64,
+    [f64; 4],
+    Vec<StaircaseOut<'py>>,
+);
 
 #[pyfunction]
 #[pyo3(signature = (model, tol))]
@@ -177,6 +198,11 @@ pub(crate) fn kalman_decomposition<'py>(
         k.sizes,
         k.condition,
         k.pattern_residual,
+        [k.zeroed_b, k.zeroed_c, k.markov_residual, k.factor],
+        k.staircases
+            .into_iter()
+            .map(|s| staircase_out(py, s))
+            .collect::<PyResult<Vec<_>>>()?,
     ))
 }
 

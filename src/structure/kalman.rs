@@ -22,11 +22,26 @@
 //! N need not be orthogonal), and no orthogonal T reaches this pattern in general.
 //!
 //! # Numerical aspects
-//! Rank decisions as in the staircase (default tol `n² eps max(‖A‖_F, ‖B‖_F)` and
-//! `n² eps max(‖A‖_F, ‖C‖_F)`). The transformed matrices are computed with an LU solve
-//! with T; the entries the pattern says are zero are set to zero and the largest of them
-//! (relative to ‖A‖, ‖B‖, ‖C‖) is reported, as is the 2-norm condition number of T, which
-//! bounds how much the solve can amplify rounding errors.
+//! Rank decisions as in [`super::minimal`]: by default scale invariant (each staircase step
+//! against the norm of its own data block of the balanced model, `n² eps ‖B̂‖_F` at the
+//! first controllability step, `n² eps ‖Ĉ‖_F` at the first observability step,
+//! `n² eps ‖A‖_F` later; B̂, Ĉ with columns / rows scaled by powers of two to one exponent);
+//! an explicit tol is absolute, on the balanced model. The transformed matrices are computed
+//! with an LU solve with T; the entries the pattern says are zero are set to zero and the
+//! largest of them (relative to ‖A‖, ‖B‖, ‖C‖) is reported, as is the 2-norm condition
+//! number of T, which bounds how much the solve can amplify rounding errors.
+//!
+//! Verification: the pattern residual, the relative norms of the parts of B and C set to
+//! zero, and the Markov-parameter residual of the minimal part `(A11, B1, C1)` against the
+//! model ([`super::verify`]). Under the default a result is accepted when the pattern
+//! residual is at most `100 n eps max(1, cond T)` and the Markov residual at most
+//! `200 n² eps`; candidate factors between `n² eps` and `sqrt(eps)` are tried first (the
+//! factor found by the minimal realization's search, then the kept singular values of each
+//! passing result; the smallest minimal part that passes wins), then the default, then
+//! exact zeros only
+//! (tol 0); if none passes the call is refused with `Unverified`. With an explicit tol the
+//! result is refused when more than half of B or of C (in Frobenius norm) would be set to
+//! zero or the minimal part's Markov residual exceeds 1/2: B is never zeroed silently.
 //!
 //! # References
 //! R. E. Kalman, SIAM J. Control 1 (1963); E. G. Gilbert, "Controllability and
@@ -34,10 +49,12 @@
 //! P. Van Dooren, IEEE Trans. Automat. Control 26 (1981).
 
 use super::minimal::check_model;
+use super::minimal::{candidate_factors, MAX_TRIES};
 use super::staircase::{
-    check_tol, controllability_staircase, default_tol, frobenius, leading_part,
-    observability_staircase,
+    check_tol, default_factor, frobenius, leading_part, observability_with, staircase_with,
+    Tolerance,
 };
+use super::verify::{markov_residual, markov_tolerance};
 use super::{columns, condition_number, from_faer, hstack, to_faer};
 use crate::balance::balance_model;
 use crate::error::{ModelError, Result};
@@ -54,6 +71,16 @@ pub struct KalmanDecomposition {
     pub condition: f64,
     /// Largest entry set to zero by the pattern, relative to the norm of its matrix.
     pub pattern_residual: f64,
+    /// Frobenius norms of the parts of `T⁻¹ B` and `C T` set to zero, relative to ‖B‖_F, ‖C‖_F.
+    pub zeroed_b: f64,
+    pub zeroed_c: f64,
+    /// Markov-parameter residual of the minimal part against the model.
+    pub markov_residual: f64,
+    /// Singular values, thresholds and backward errors of the three staircases
+    /// (controllable subspace, unobservable part of it, unobservable subspace).
+    pub staircases: [super::staircase::Staircase; 3],
+    /// The relative factor of the decisions (NaN for an explicit tol).
+    pub factor: f64,
 }
 
 /// The first `k` left singular vectors of `m` (an orthonormal basis of its dominant range).
@@ -87,18 +114,112 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
     // for badly scaled models such as companion forms); geometry back in the caller's
     // coordinates.
     let (bal, scale) = balance_model(ss);
-    let tol_c = tol.unwrap_or_else(|| default_tol(&bal.a, &bal.b));
-    let tol_o = tol.unwrap_or_else(|| default_tol(&bal.a, &bal.c));
+    if let Some(x) = tol {
+        let k = decompose(ss, &bal, &scale, Tolerance::Absolute(x))?;
+        if k.zeroed_b > 0.5 || k.zeroed_c > 0.5 || k.markov_residual > 0.5 {
+            return Err(ModelError::Unverified {
+                what: "the Kalman decomposition",
+                detail: format!(
+                    "at tol={x:.3e} the decomposition would set {:.3} of B and {:.3} of C (relative \
+                     Frobenius norms) to zero and its minimal part's Markov parameters differ by {:.3e} \
+                     relative: tol is above the scale of the data; pass a smaller tol or none",
+                    k.zeroed_b, k.zeroed_c, k.markov_residual
+                ),
+            });
+        }
+        return Ok(k);
+    }
+    let f0 = default_factor(n);
+    let vt = markov_tolerance(n);
+    let passes = |k: &KalmanDecomposition| {
+        k.markov_residual <= vt
+            && k.pattern_residual <= 100.0 * n as f64 * f64::EPSILON * k.condition.max(1.0)
+    };
+    let k0 = decompose(ss, &bal, &scale, Tolerance::Relative(f0))?;
+    let (p0, m0, c0) = (k0.pattern_residual, k0.markov_residual, k0.condition);
+    let mut frontier = {
+        let [a, b, c] = &k0.staircases;
+        candidate_factors(&[a, b, c], f0)
+    };
+    // The factor the minimal realization's search settled on decides the controllable and
+    // the observable part together; try it first (three separate passes at a factor
+    // between two rounding-level values can disagree).
+    if let Ok(m) = super::minimal::minimal_realization(ss, None) {
+        if m.factor > f0 {
+            frontier.insert(0, m.factor);
+        }
+    }
+    let mut best = passes(&k0).then_some(k0);
+    let mut tries = 0;
+    while !frontier.is_empty() && tries < MAX_TRIES {
+        let f = frontier.remove(0);
+        tries += 1;
+        if let Ok(k) = decompose(ss, &bal, &scale, Tolerance::Relative(f)) {
+            if passes(&k) {
+                let [a, b, c] = &k.staircases;
+                frontier = candidate_factors(&[a, b, c], f);
+                if best.as_ref().is_none_or(|b| k.sizes[0] < b.sizes[0]) {
+                    best = Some(k);
+                }
+            }
+        }
+    }
+    if let Some(b) = best {
+        return Ok(b);
+    }
+    // The default result fails the check: keep every state that is not decided by an
+    // exact zero, if that passes.
+    if let Ok(keep) = decompose(ss, &bal, &scale, Tolerance::Relative(0.0)) {
+        if passes(&keep) {
+            return Ok(keep);
+        }
+    }
+    Err(ModelError::Unverified {
+        what: "the Kalman decomposition",
+        detail: format!(
+            "the decomposition at the default tol fails its check (pattern residual {:.3e}, \
+             Markov residual of the minimal part {:.3e}; thresholds {:.3e}, {vt:.3e}) and so does \
+             the one by exact zeros only; pass an explicit tol",
+            p0,
+            m0,
+            100.0 * n as f64 * f64::EPSILON * c0.max(1.0)
+        ),
+    })
+}
 
-    let sc = controllability_staircase(&bal.a, &bal.b, Some(&bal.c), Some(tol_c))?;
+/// One decomposition with the decisions judged by `t` (on the balanced model `bal`, whose
+/// diagonal similarity is `scale`).
+fn decompose(
+    ss: &StateSpace<f64>,
+    bal: &StateSpace<f64>,
+    scale: &[f64],
+    t: Tolerance,
+) -> Result<KalmanDecomposition> {
+    let n = ss.n_states();
+    let factor = match t {
+        Tolerance::Relative(f) => f,
+        Tolerance::Absolute(_) => f64::NAN,
+    };
+    let at = match t {
+        Tolerance::Absolute(x) => format!("tol={x:.3e}"),
+        Tolerance::Relative(f) => format!("the default tol (relative factor {f:.3e})"),
+    };
+    let sc = staircase_with(&bal.a, &bal.b, Some(&bal.c), t, None)?;
+    // the eigenvector-guided split of the default (PBH test, verified; see the staircase)
+    let sc = match t {
+        Tolerance::Relative(f) if f > 0.0 => {
+            super::staircase::eigenvector_split(&bal.a, &bal.b, Some(&bal.c), f, &sc)?.unwrap_or(sc)
+        }
+        _ => sc,
+    };
     let nc = sc.rank;
     let r_basis = columns(&sc.q, 0, nc);
     let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), nc);
-    let so = observability_staircase(&a1, Some(&b1), &c1, Some(tol_o))?;
+    let so = observability_with(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
     let k1 = so.rank;
     let x2_balanced = r_basis.matmul(&columns(&so.q, so.rank, nc));
 
-    let full_o = observability_staircase(&bal.a, Some(&bal.b), &bal.c, Some(tol_o))?;
+    let full_o = observability_with(&bal.a, Some(&bal.b), &bal.c, t, None)?;
     let n_balanced = columns(&full_o.q, full_o.rank, n);
     // In exact arithmetic R∩N ⊂ N and R + N fits in n dimensions. Three separate rank
     // decisions can disagree when a singular value sits near tol; then no consistent
@@ -108,7 +229,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
         return Err(ModelError::BadValue {
             arg: "tol",
             detail: format!(
-                "the rank decisions disagree at tol={tol_o:.3e}: the controllable part ({nc} states) has \
+                "the rank decisions disagree at {at}: the controllable part ({nc} states) has \
                  {k2} unobservable states but the whole model has {dim_n} (and {k1} controllable, observable \
                  ones); a singular value lies close to tol: inspect the staircase margins and pass a tol \
                  inside their gap"
@@ -185,6 +306,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
         _ => pi == 0 || pi == 2,
     };
     let mut residual: f64 = 0.0;
+    let (mut zb, mut zc): (f64, f64) = (0.0, 0.0);
     let (na, nb, nc_norm) = (
         frobenius(&ss.a).max(f64::MIN_POSITIVE),
         frobenius(&ss.b).max(f64::MIN_POSITIVE),
@@ -200,6 +322,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
         if part(i) >= 2 {
             for j in 0..b.cols() {
                 residual = residual.max(b.get(i, j).abs() / nb);
+                zb += b.get(i, j) * b.get(i, j);
                 b.set(i, j, 0.0);
             }
         }
@@ -208,6 +331,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
         for j in 0..n {
             if part(j) == 1 || part(j) == 3 {
                 residual = residual.max(c.get(i, j).abs() / nc_norm);
+                zc += c.get(i, j) * c.get(i, j);
                 c.set(i, j, 0.0);
             }
         }
@@ -220,16 +344,32 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
             what: "the Kalman decomposition".into(),
         });
     }
+    let realization = StateSpace {
+        a,
+        b,
+        c,
+        d: ss.d.clone(),
+    };
+    let k = sizes[0];
+    let (a11, b11, c11) = leading_part(&realization.a, &realization.b, &realization.c, k);
+    let minimal = StateSpace {
+        a: a11,
+        b: b11,
+        c: c11,
+        d: ss.d.clone(),
+    };
+    let markov = markov_residual(bal, &minimal);
+    let rel = |z: f64, norm: f64| if z == 0.0 { 0.0 } else { z.sqrt() / norm };
     Ok(KalmanDecomposition {
-        realization: StateSpace {
-            a,
-            b,
-            c,
-            d: ss.d.clone(),
-        },
+        realization,
         t,
         sizes,
         condition,
         pattern_residual: residual,
+        zeroed_b: rel(zb, nb),
+        zeroed_c: rel(zc, nc_norm),
+        markov_residual: markov,
+        staircases: [sc, so, full_o],
+        factor,
     })
 }

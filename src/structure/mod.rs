@@ -6,12 +6,14 @@
 //! | Kalman decomposition | [`kalman`] |
 //! | minimal realization | [`minimal`] |
 //! | similarity transformation between two minimal realizations | [`similarity`] |
+//! | Markov-parameter check of a reduced model | [`verify`] |
 
 pub mod householder;
 pub mod kalman;
 pub mod minimal;
 pub mod similarity;
 pub mod staircase;
+pub mod verify;
 
 use crate::matrix::Matrix;
 

@@ -18,9 +18,17 @@
 //!
 //! # Numerical aspects
 //! Backward stable: the result is the exact staircase form of `(A + E, B + F)` with
-//! `‖E‖, ‖F‖` of order `tol + n eps ‖(A, B)‖` (Van Dooren 1981). Default
-//! `tol = n² eps max(‖A‖_F, ‖B‖_F)`. The decisions, and so the result, are invariant under
-//! orthogonal changes of coordinates (up to rounding). [`super::minimal`] and
+//! `‖E‖, ‖F‖` of order `tol + n eps ‖(A, B)‖` (Van Dooren 1981). Default (scale
+//! invariant, [`Tolerance::Relative`]): the first step against `n² eps ‖B̂‖_F` (B with its
+//! columns scaled by powers of two to one exponent), later steps against `n² eps ‖A‖_F`;
+//! then a verified search for rounding-level values amplified along the chain (candidate
+//! factors up to `sqrt(eps)`, and an eigenvector-guided split by the PBH eigenvector test),
+//! a smaller controllable part being accepted only when it reproduces the Krylov sequence
+//! `A^k B`, `k < 2n`, to `200 n² eps` (a check of a candidate split, not a rank decision
+//! from the controllability matrix). Every step records its threshold and backward error,
+//! and the final split its a-posteriori residual from the returned Q. The decisions are
+//! invariant under input scaling, uniform state scaling and orthogonal changes of
+//! coordinates (up to rounding). [`super::minimal`] and
 //! [`super::kalman`] work on a balanced copy instead (smaller rounding errors for
 //! companion-like models). The singular values every decision was made on are
 //! kept ([`StepRecord`]), so a caller sees how close each one was. Data whose largest entry
@@ -47,11 +55,31 @@ use crate::matrix::{pow2, range_exponent, scaled_frobenius_norm, Matrix};
 use crate::state_space::StateSpace;
 use faer::Mat;
 
-/// The singular values one rank decision was made on, and how many were kept.
+/// The singular values one rank decision was made on, how many were kept, the threshold
+/// they were judged against and the backward error of the decision.
 #[derive(Debug, Clone, PartialEq)]
 pub struct StepRecord {
     pub singular_values: Vec<f64>,
     pub kept: usize,
+    /// Singular values above this count (the tol of this step, in the units of
+    /// `singular_values`).
+    pub threshold: f64,
+    /// The Frobenius norm of the discarded part (the singular values not kept), relative
+    /// to the norm of the data the step is judged against (‖B̂‖_F at the first step,
+    /// ‖A‖_F later; see [`Tolerance`]): what the decision changed, relative to the data.
+    pub backward_error: f64,
+}
+
+/// How the rank decisions are judged.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Tolerance {
+    /// One absolute tol for every step, in the caller's units (an explicit `tol`).
+    Absolute(f64),
+    /// The scale-invariant default with this relative factor (`n² eps` for the public
+    /// routines): the first step against `factor · ‖B̂‖_F`, where `B̂` is `B` with its
+    /// columns scaled by powers of two to the exponent of the largest column norm, the
+    /// later steps against `factor · ‖A‖_F`.
+    Relative(f64),
 }
 
 /// A staircase form and what its decisions were made on.
@@ -67,8 +95,13 @@ pub struct Staircase {
     /// Controllable (or observable) dimension.
     pub rank: usize,
     pub steps: Vec<StepRecord>,
-    /// The tolerance used.
+    /// The tolerance used: the explicit tol, or under the default the threshold of the
+    /// steps after the first (`n² eps ‖A‖_F`; each step's own is in `steps`).
     pub tol: f64,
+    /// A posteriori backward error of the split into reached and unreached states,
+    /// recomputed from the returned Q and the data: `‖(Qᵀ A Q)_21‖_F / ‖A‖_F` and
+    /// `‖(Qᵀ B)_2‖_F / ‖B‖_F` (the blocks set to zero; 0 when every state is reached).
+    pub split_residual: [f64; 2],
 }
 
 /// Frobenius norm, scaled by the largest entry so that it does not overflow for entries
@@ -77,12 +110,47 @@ pub fn frobenius(m: &Matrix<f64>) -> f64 {
     crate::matrix::frobenius_norm(m.as_slice())
 }
 
-/// `n² eps max(‖A‖_F, ‖B‖_F)`, finite for every finite input (n² eps ‖·‖ is far below the
-/// float64 range even where the norm itself is not).
-pub fn default_tol(a: &Matrix<f64>, b: &Matrix<f64>) -> f64 {
-    let n = a.rows() as f64;
-    let factor = n * n * f64::EPSILON;
-    scaled_frobenius_norm(factor, a.as_slice()).max(scaled_frobenius_norm(factor, b.as_slice()))
+/// The relative factor of the default tol, `n² eps`.
+pub fn default_factor(n: usize) -> f64 {
+    let n = n as f64;
+    n * n * f64::EPSILON
+}
+
+/// Exponents `e_j` with `2^(e_j)` times column j of `b` having the exponent of the largest
+/// column norm (0 for a zero column): the input balancing of the default tol. Exact, and
+/// the same bits for `b` with its columns scaled by any powers of two.
+fn column_exponents(b: &Matrix<f64>) -> Vec<i32> {
+    let exp = |v: f64| -> Option<i32> {
+        if v > 0.0 && v.is_finite() {
+            Some(v.log2().floor() as i32)
+        } else {
+            None
+        }
+    };
+    let norms: Vec<Option<i32>> = (0..b.cols())
+        .map(|j| {
+            let col: Vec<f64> = (0..b.rows()).map(|i| *b.get(i, j)).collect();
+            exp(crate::matrix::frobenius_norm(&col))
+        })
+        .collect();
+    let top = norms.iter().flatten().copied().max().unwrap_or(0);
+    norms.iter().map(|e| e.map_or(0, |e| top - e)).collect()
+}
+
+/// `m` with column j multiplied by `2^(sign · e_j)` (exact away from underflow).
+fn scale_columns(m: &Matrix<f64>, e: &[i32], sign: i32) -> Matrix<f64> {
+    let mut out = m.clone();
+    for (j, &k) in e.iter().enumerate() {
+        if k == 0 {
+            continue;
+        }
+        // two factors so that 2^k itself need not be representable
+        let (f1, f2) = (pow2(sign * (k / 2)), pow2(sign * (k - k / 2)));
+        for i in 0..m.rows() {
+            out.set(i, j, m.get(i, j) * f1 * f2);
+        }
+    }
+    out
 }
 
 /// A power of two `s` with `s · max|m|` near 1 when the matrices' largest magnitude is
@@ -156,6 +224,15 @@ fn thin_svd(
 
 /// The controllability staircase of (A, B), carrying C along when given.
 ///
+/// Default (`tol = None`): the scale-invariant [`Tolerance::Relative`] with factor
+/// `n² eps`: the first step keeps the singular values of `B̂` above `n² eps ‖B̂‖_F`
+/// (`B̂ = B` with its columns scaled by powers of two to the exponent of the largest
+/// column norm), each later step those of its block of `A` above `n² eps ‖A‖_F`. The
+/// decisions are unchanged when the inputs are scaled (any powers of two: `B̂` has the
+/// same bits), when all states are scaled by one factor (A is unchanged, `B̂` scales with
+/// B), and, up to rounding, under orthogonal changes of state coordinates. An explicit tol
+/// is absolute and applies to every step, in the caller's units.
+///
 /// Data near the ends of the float64 range are reduced on a copy scaled by powers of two
 /// (A and B by one factor, C by its own), which changes no decision: the reduction is
 /// homogeneous in (A, B, tol) and linear in C. Results are scaled back; one that is not
@@ -166,16 +243,289 @@ pub fn controllability_staircase(
     c: Option<&Matrix<f64>>,
     tol: Option<f64>,
 ) -> Result<Staircase> {
-    check_pair(a, b, c)?;
     check_tol(tol)?;
+    match tol {
+        Some(t) => staircase_with(a, b, c, Tolerance::Absolute(t), None),
+        None => {
+            let f0 = default_factor(a.rows());
+            let st0 = staircase_with(a, b, c, Tolerance::Relative(f0), None)?;
+            let st = verified_search(a, b, c, st0, f0);
+            Ok(eigenvector_split(a, b, c, f0, &st)?.unwrap_or(st))
+        }
+    }
+}
+
+/// The default's search for rounding-level values amplified above `n² eps` along the chain
+/// of steps: candidate factors from the kept singular values in `(n² eps, sqrt(eps)]`
+/// (largest first, at most four per result and eight in all); a candidate with a smaller
+/// reached dimension is accepted only when its split reproduces the Krylov sequence:
+/// the Markov parameters of `(A, B, I)` against `(A_c, B_c, Q_c)`
+/// ([`super::verify::markov_residual`] at most [`super::verify::markov_tolerance`]), i.e.
+/// `A^k B` stays in the reached subspace to rounding level for `k < 2n`. This is a check of
+/// a candidate, not a rank decision from the controllability matrix.
+fn verified_search(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: Option<&Matrix<f64>>,
+    st0: Staircase,
+    f0: f64,
+) -> Staircase {
+    let n = a.rows();
+    if n == 0 {
+        return st0;
+    }
+    let full = StateSpace {
+        a: a.clone(),
+        b: b.clone(),
+        c: Matrix::identity(n),
+        d: Matrix::zeros(n, b.cols()),
+    };
+    let vt = super::verify::markov_tolerance(n);
+    let mut frontier = super::minimal::candidate_factors(&[&st0], f0);
+    let mut best = st0;
+    let mut tries = 0;
+    while !frontier.is_empty() && tries < super::minimal::MAX_TRIES {
+        let f = frontier.remove(0);
+        tries += 1;
+        let Ok(st) = staircase_with(a, b, c, Tolerance::Relative(f), None) else {
+            continue;
+        };
+        if st.rank >= best.rank {
+            continue;
+        }
+        let k = st.rank;
+        let reduced = StateSpace {
+            a: leading_block(&st.a, k, k),
+            b: leading_block(&st.b, k, b.cols()),
+            c: super::columns(&st.q, 0, k),
+            d: Matrix::zeros(n, b.cols()),
+        };
+        let r = super::verify::markov_residual(&full, &reduced);
+        if r <= vt {
+            frontier = super::minimal::candidate_factors(&[&st], f);
+            best = st;
+        }
+    }
+    best
+}
+
+/// Relative size below which a kept singular value makes the chain suspicious enough for
+/// the eigenvector check (random controllable chains stay above it).
+const SUSPICIOUS_STEP: f64 = 1e-2;
+/// A mode is a candidate for the uncontrollable part when `|vᵀ B̂| <= this · ‖v‖ ‖B̂‖_F`
+/// (v a left eigenvector; the PBH eigenvector test).
+const PBH_CANDIDATE: f64 = 1e-8;
+
+/// Eigenvector-guided split (PBH test): when the staircase reached more states than a
+/// left-eigenvector count says are controllable, the left eigenvectors `v` of the modes
+/// with `|vᵀ B̂| <= 1e-8 ‖v‖ ‖B̂‖_F` span a candidate left-invariant subspace `Q_2` with
+/// `Q_2ᵀ B ≈ 0`; the split `[Q_1, Q_2]` is accepted only when it reproduces the Krylov
+/// sequence (as in [`verified_search`]). The controllable part then gets its own
+/// staircase; the split is recorded as a final step whose value is `‖Q_2ᵀ A Q_1‖_F`.
+/// Only tried when some kept step value is below `1e-2` relative (a long, weak chain).
+pub(crate) fn eigenvector_split(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: Option<&Matrix<f64>>,
+    f0: f64,
+    st: &Staircase,
+) -> Result<Option<Staircase>> {
+    let n = a.rows();
+    if n < 2 || b.cols() == 0 || st.rank == 0 {
+        return Ok(None);
+    }
+    let suspicious = st.steps.iter().any(|step| {
+        let scale = step.threshold / f0;
+        step.threshold > 0.0
+            && step.singular_values[..step.kept]
+                .iter()
+                .any(|&v| v / scale < SUSPICIOUS_STEP)
+    });
+    if !suspicious || range_scale(&[a, b]) != 1.0 {
+        return Ok(None);
+    }
+    let e = column_exponents(b);
+    let b_hat = scale_columns(b, &e, 1);
+    let at = super::to_faer(&a.transpose());
+    let Ok(eig) = at.eigen() else {
+        return Ok(None);
+    };
+    let (u, values) = (eig.U(), eig.S().column_vector());
+    let nb = frobenius(&b_hat);
+    let bh = super::to_faer(&b_hat);
+    let mut cols: Vec<Vec<f64>> = Vec::new();
+    for i in 0..n {
+        let lam = values[i];
+        if lam.im < 0.0 {
+            continue; // its conjugate stands for the pair
+        }
+        let v: Vec<faer::c64> = (0..n).map(|k| u[(k, i)]).collect();
+        let vn = v
+            .iter()
+            .map(|z| z.re * z.re + z.im * z.im)
+            .sum::<f64>()
+            .sqrt();
+        let mut worst: f64 = 0.0;
+        for j in 0..b.cols() {
+            let (mut re, mut im) = (0.0, 0.0);
+            for k in 0..n {
+                re += v[k].re * bh[(k, j)];
+                im += v[k].im * bh[(k, j)];
+            }
+            worst = worst.max((re * re + im * im).sqrt());
+        }
+        if worst <= PBH_CANDIDATE * vn * nb {
+            cols.push(v.iter().map(|z| z.re).collect());
+            if lam.im > 0.0 {
+                cols.push(v.iter().map(|z| z.im).collect());
+            }
+        }
+    }
+    let ku = cols.len();
+    if ku == 0 || n - ku >= st.rank {
+        return Ok(None);
+    }
+    let w = Matrix::from_row_major(n, ku, (0..n * ku).map(|x| cols[x % ku][x / ku]).collect())
+        .expect("n x ku");
+    let Ok(svd) = super::to_faer(&w).svd() else {
+        return Ok(None);
+    };
+    let sv = svd.S().column_vector();
+    if !(sv[ku - 1] > 1e-8 * sv[0]) {
+        return Ok(None);
+    }
+    let uu = super::from_faer(svd.U());
+    let q2 = super::columns(&uu, 0, ku);
+    let q1 = super::columns(&uu, ku, n);
+    let nc = n - ku;
+    // the controllable part and its own staircase, thresholds from the whole pair
+    let a11 = q1.transpose().matmul(a).matmul(&q1);
+    let b1 = q1.transpose().matmul(b);
+    let c1 = c.map(|c| c.matmul(&q1));
+    let inner = staircase_with(
+        &a11,
+        &b1,
+        c1.as_ref(),
+        Tolerance::Relative(f0),
+        Some((a, b)),
+    )?;
+    let qc = q1.matmul(&inner.q);
+    let k = inner.rank;
+    let reduced = StateSpace {
+        a: leading_block(&inner.a, k, k),
+        b: leading_block(&inner.b, k, b.cols()),
+        c: super::columns(&qc, 0, k),
+        d: Matrix::zeros(n, b.cols()),
+    };
+    let full = StateSpace {
+        a: a.clone(),
+        b: b.clone(),
+        c: Matrix::identity(n),
+        d: Matrix::zeros(n, b.cols()),
+    };
+    if super::verify::markov_residual(&full, &reduced) > super::verify::markov_tolerance(n) {
+        return Ok(None);
+    }
+    // assemble Q = [Q_1 Q_c, Q_2] and the transformed matrices
+    let q = super::hstack(&[&qc, &q2], n);
+    let mut ta = q.transpose().matmul(a).matmul(&q);
+    let mut tb = q.transpose().matmul(b);
+    let coupling: Vec<f64> = (nc..n)
+        .flat_map(|i| (0..nc).map(move |j| (i, j)))
+        .map(|(i, j)| *ta.get(i, j))
+        .collect();
+    let coupling_norm = crate::matrix::frobenius_norm(&coupling);
+    for i in 0..nc {
+        for j in 0..nc {
+            ta.set(i, j, *inner.a.get(i, j));
+        }
+        for j in 0..b.cols() {
+            tb.set(i, j, *inner.b.get(i, j));
+        }
+    }
+    for i in nc..n {
+        for j in 0..nc {
+            ta.set(i, j, 0.0);
+        }
+        for j in 0..b.cols() {
+            tb.set(i, j, 0.0);
+        }
+    }
+    let tc = c.map(|c| c.matmul(&q));
+    let mut steps = inner.steps.clone();
+    let na = frobenius(a);
+    steps.push(StepRecord {
+        singular_values: vec![coupling_norm],
+        kept: 0,
+        threshold: coupling_norm.max(st.tol),
+        backward_error: if coupling_norm == 0.0 {
+            0.0
+        } else {
+            coupling_norm / na
+        },
+    });
+    let mut out = Staircase {
+        a: ta,
+        b: tb,
+        c: tc,
+        q,
+        blocks: inner.blocks.clone(),
+        rank: k,
+        steps,
+        tol: st.tol,
+        split_residual: [0.0, 0.0],
+    };
+    out.split_residual = split_residual(a, &b_hat, &out);
+    Ok(Some(out))
+}
+
+fn leading_block(m: &Matrix<f64>, rows: usize, cols: usize) -> Matrix<f64> {
+    Matrix::from_row_major(
+        rows,
+        cols,
+        (0..rows * cols)
+            .map(|x| *m.get(x / cols, x % cols))
+            .collect(),
+    )
+    .expect("block")
+}
+
+/// The controllability staircase with the decisions judged by `t`.
+///
+/// `reference`: for a pass on a part of a model (the controllable part, say), the model's
+/// own (A, B): the relative thresholds and the input balancing are taken from it, not
+/// from the part, whose blocks may be rounding noise of the earlier reduction.
+pub fn staircase_with(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: Option<&Matrix<f64>>,
+    t: Tolerance,
+    reference: Option<(&Matrix<f64>, &Matrix<f64>)>,
+) -> Result<Staircase> {
+    check_pair(a, b, c)?;
     let s_ab = range_scale(&[a, b]);
     let s_c = c.map_or(1.0, |c| range_scale(&[c]));
     let (a_s, b_s, c_s) = (scaled(a, s_ab), scaled(b, s_ab), c.map(|c| scaled(c, s_c)));
-    let tol_s = match tol {
-        Some(t) => t * s_ab,
-        None => default_tol(&a_s, &b_s),
+    let (ref_a, ref_b) = match reference {
+        Some((ra, rb)) => (scaled(ra, s_ab), scaled(rb, s_ab)),
+        None => (a_s.clone(), b_s.clone()),
     };
-    let mut st = reduce(&a_s, &b_s, c_s.as_ref(), tol_s)?;
+    // Input balancing (default only): the columns of B to one exponent, exactly.
+    let e = match t {
+        Tolerance::Relative(_) => column_exponents(&ref_b),
+        Tolerance::Absolute(_) => vec![0; b.cols()],
+    };
+    let b_hat = scale_columns(&b_s, &e, 1);
+    let (tol_first, tol_later) = match t {
+        Tolerance::Absolute(x) => (x * s_ab, x * s_ab),
+        Tolerance::Relative(f) => (
+            scaled_frobenius_norm(f, scale_columns(&ref_b, &e, 1).as_slice()),
+            scaled_frobenius_norm(f, ref_a.as_slice()),
+        ),
+    };
+    let mut st = reduce(&a_s, &b_hat, c_s.as_ref(), tol_first, tol_later)?;
+    st.split_residual = split_residual(&a_s, &b_hat, &st);
+    st.b = scale_columns(&st.b, &e, -1);
     st.a = unscaled(st.a, s_ab, "the transformed A of the staircase form")?;
     st.b = unscaled(st.b, s_ab, "the transformed B of the staircase form")?;
     st.c =
@@ -183,13 +533,34 @@ pub fn controllability_staircase(
             .transpose()?;
     for step in &mut st.steps {
         step.singular_values.iter_mut().for_each(|v| *v /= s_ab);
+        step.threshold /= s_ab;
         require_representable(
             &step.singular_values,
             "the singular values of a staircase step",
         )?;
     }
-    st.tol = tol.unwrap_or(st.tol / s_ab);
+    st.tol = match t {
+        Tolerance::Absolute(x) => x,
+        Tolerance::Relative(_) => st.tol / s_ab,
+    };
     Ok(st)
+}
+
+/// `‖(Qᵀ A Q)_21‖_F / ‖A‖_F` and `‖(Qᵀ B)_2‖_F / ‖B‖_F` for the returned Q (0 for 0/0).
+fn split_residual(a: &Matrix<f64>, b: &Matrix<f64>, st: &Staircase) -> [f64; 2] {
+    let (n, k) = (a.rows(), st.rank);
+    if k == n {
+        return [0.0, 0.0];
+    }
+    let q = super::to_faer(&st.q);
+    let (q1, q2) = (q.subcols(0, k), q.subcols(k, n - k));
+    let a21 = q2.transpose() * super::to_faer(a) * q1;
+    let b2 = q2.transpose() * super::to_faer(b);
+    let rel = |num: f64, den: f64| if num == 0.0 { 0.0 } else { num / den };
+    [
+        rel(a21.norm_l2(), frobenius(a)),
+        rel(b2.norm_l2(), frobenius(b)),
+    ]
 }
 
 /// One staircase reduction with step sizes decided by `tol`.
@@ -197,8 +568,10 @@ fn reduce(
     a: &Matrix<f64>,
     b: &Matrix<f64>,
     c: Option<&Matrix<f64>>,
-    tol: f64,
+    tol_first: f64,
+    tol_later: f64,
 ) -> Result<Staircase> {
+    let (norm_b, norm_a) = (frobenius(b), frobenius(a));
     let (n, m) = (a.rows(), b.cols());
     let (mut a, mut b, mut c) = (a.clone(), b.clone(), c.cloned());
     let mut q = Matrix::identity(n);
@@ -215,10 +588,18 @@ fn reduce(
         let source = if first { &b } else { &a };
         let col0 = if first { 0 } else { prev };
         let (sigma, u) = thin_svd(rows, width, |i, j| *source.get(reached + i, col0 + j))?;
+        let (tol, scale) = if first {
+            (tol_first, norm_b)
+        } else {
+            (tol_later, norm_a)
+        };
         let r = sigma.iter().filter(|&&s| s > tol).count();
+        let dropped = crate::matrix::frobenius_norm(&sigma[r..]);
         steps.push(StepRecord {
             singular_values: sigma,
             kept: r,
+            threshold: tol,
+            backward_error: if dropped == 0.0 { 0.0 } else { dropped / scale },
         });
 
         // Reflections taking span(U_r) onto the first r axes of the remaining states.
@@ -263,13 +644,15 @@ fn reduce(
         rank: reached,
         blocks,
         steps,
-        tol,
+        tol: tol_later,
+        split_residual: [0.0, 0.0],
     })
 }
 
 /// The observability staircase: `Qᵀ A Q = [[A_o, 0], [A_21, A_u]]`, `C Q = [C_o, 0]`, by
 /// duality (the controllability staircase of `(Aᵀ, Cᵀ)`, transposed). The default tol is
-/// `n² eps max(‖A‖_F, ‖C‖_F)`.
+/// the dual one: the first step against `n² eps ‖Ĉ‖_F` (`C` with its rows scaled by powers
+/// of two to the exponent of the largest row norm), later steps against `n² eps ‖A‖_F`.
 pub fn observability_staircase(
     a: &Matrix<f64>,
     b: Option<&Matrix<f64>>,
@@ -284,6 +667,28 @@ pub fn observability_staircase(
     Ok(transpose_dual(dual))
 }
 
+/// The observability staircase with the decisions judged by `t` (the dual of
+/// [`staircase_with`]; the default balances the rows of C).
+pub fn observability_with(
+    a: &Matrix<f64>,
+    b: Option<&Matrix<f64>>,
+    c: &Matrix<f64>,
+    t: Tolerance,
+    reference: Option<(&Matrix<f64>, &Matrix<f64>)>,
+) -> Result<Staircase> {
+    let b = b.cloned().unwrap_or_else(|| Matrix::zeros(a.rows(), 0));
+    check_pair(a, &b, Some(c))?;
+    let reference = reference.map(|(ra, rc)| (ra.transpose(), rc.transpose()));
+    let dual = staircase_with(
+        &a.transpose(),
+        &c.transpose(),
+        Some(&b.transpose()),
+        t,
+        reference.as_ref().map(|(ra, rc)| (ra, rc)),
+    )?;
+    Ok(transpose_dual(dual))
+}
+
 /// The observability form from the controllability staircase of the dual.
 fn transpose_dual(dual: Staircase) -> Staircase {
     Staircase {
@@ -295,6 +700,7 @@ fn transpose_dual(dual: Staircase) -> Staircase {
         rank: dual.rank,
         steps: dual.steps,
         tol: dual.tol,
+        split_residual: dual.split_residual,
     }
 }
 

@@ -76,10 +76,16 @@ TRANSFER_MATRIX_FORMS = ("block_controller", "block_observer")
 
 
 @CI
-@given(data=transfer_matrix_data(), form=option(TRANSFER_MATRIX_FORMS), minimal=flag(), tol=bad_tol())
-def test_realize_transfer_matrix_float(data, form, minimal, tol):
+@given(
+    data=transfer_matrix_data(),
+    form=option(TRANSFER_MATRIX_FORMS),
+    minimal=flag(),
+    tol=bad_tol(),
+    merge_tol=bad_tol(),
+)
+def test_realize_transfer_matrix_float(data, form, minimal, tol, merge_tol):
     num, den, _ = data
-    r = attempt(sw.realize_transfer_matrix, num, den, form, minimal=minimal, tol=tol)
+    r = attempt(sw.realize_transfer_matrix, num, den, form, minimal=minimal, tol=tol, merge_tol=merge_tol)
     if r is not FAILED:
         p, m = np.shape(num)[:2]  # a drawn "wrong" shape may still be a valid transfer matrix
         check_realization(r, m=m, p=p, exact=False)

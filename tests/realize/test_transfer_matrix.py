@@ -171,13 +171,48 @@ def test_repeated_and_nearly_equal_roots_stay_accurate():
         r = sw.realize_transfer_matrix(fn, fd, form)
         for s in POINTS:
             np.testing.assert_allclose(r.evaluate(s), entry_values(num, den, s), rtol=1e-9)  # (identity)
-    # A tol of 1e-3 merges distinct poles 1 and 1.0001 in one column: the realization has
-    # one state less and the entries change by about 1e-4 relative near the pole.
+    # API version 2: the root-merging tolerance is merge_tol, and a merge is verified. A
+    # merge_tol of 1e-3 would merge the distinct poles 1 and 1.0001 in one column, which
+    # changes the entries by about 1e-2 relative at distance 1e-2 from the pole: the merge
+    # is refused and the two states are kept (a correct realization).
     num = [[[1]], [[1]]]
     den = [[[1, -1]], [[1, -1.0001]]]
     fn, fd = float_arrays(num, den)
     assert sw.realize_transfer_matrix(fn, fd).n_states == 2
-    assert sw.realize_transfer_matrix(fn, fd, tol=1e-3).n_states == 1
+    r = sw.realize_transfer_matrix(fn, fd, merge_tol=1e-3)
+    assert r.n_states == 2 and r.info["merge_refused"]
+    assert r.info["merge_error"] == pytest.approx(1e-2, rel=1e-3)  # delta / distance (identity)
+    for s in POINTS:
+        np.testing.assert_allclose(r.evaluate(s), entry_values(num, den, s), rtol=1e-12)  # (identity)
+
+
+@pytest.mark.parametrize("gap", [1e-9, 1e-10, 3e-9])
+def test_merging_distinct_poles_is_refused(gap):
+    # poles -2 and -2(1 + gap) in one column: within the default merge_tol 1e-8, but merging
+    # them changes the entries by about gap / 1e-2 at distance 1e-2 |pole| (and by O(1) at
+    # distance gap): the merge is refused, both states kept. (The kept block's denominator
+    # is the product of the two factors; its rounding limits the accuracy at distances of
+    # order gap from the poles, so the entries are checked at 1e-3 |pole| and beyond.)
+    p = -2.0
+    num = [[[1]], [[1]]]
+    den = [[[1, -p]], [[1, -p * (1 + gap)]]]
+    fn, fd = float_arrays(num, den)
+    r = sw.realize_transfer_matrix(fn, fd)
+    assert r.n_states == 2 and r.info["merge_refused"] and r.info["merge_error"] > 1e-8
+    for s in (p + 2e-3j, p * (1 + 1e-3), 1j, 5.0):
+        np.testing.assert_allclose(r.evaluate(s), entry_values(num, den, s), rtol=1e-6)  # (identity)
+    rm = sw.realize_transfer_matrix(fn, fd, minimal=True)
+    # the McMillan degree of [[1/(s+2)], [1/(s+2+2 gap)]] is 2 (distinct poles; identity)
+    assert rm.n_states == 2
+
+
+def test_exactly_shared_poles_still_merge():
+    # equal roots merge exactly and pass the check (identity: the column's lcm is s + 1)
+    num = [[[1]], [[3]]]
+    den = [[[1, 1]], [[1, 1]]]
+    fn, fd = float_arrays(num, den)
+    r = sw.realize_transfer_matrix(fn, fd)
+    assert r.n_states == 1 and not r.info["merge_refused"]
 
 
 @pytest.mark.parametrize("form", FORMS)
@@ -209,9 +244,12 @@ def test_minimal_order_is_the_mcmillan_degree(form, case):
 
 def test_minimal_passes_tol_on():
     fn, fd = float_arrays(G1_NUM, G1_DEN)
+    # API version 2: tol is the rank tolerance only, merge_tol the root-merging one
     r = sw.realize_transfer_matrix(fn, fd, minimal=True, tol=1e-9)
     assert r.info["tol"] == (1e-9, 1e-9)
-    assert r.info["block_realization"]["merge_tol"] == 1e-9
+    assert r.info["block_realization"]["merge_tol"] == 1e-8
+    r = sw.realize_transfer_matrix(fn, fd, minimal=True, tol=1e-9, merge_tol=1e-10)
+    assert r.info["block_realization"]["merge_tol"] == 1e-10
 
 
 # ---------------------------------------------------------------- exact mode
@@ -263,7 +301,8 @@ def test_exact_common_denominator_and_float_agree():
         ([[[1]]], [1, np.inf], {}, "den"),
         ([[[1]]], [1, 1], {"form": "controller"}, "form"),
         ([[[1]]], [1, 1], {"tol": -1.0}, "tol"),
-        ([[[1]]], [1, 1], {"tol": 1.5}, "tol"),
+        ([[[1]]], [1, 1], {"merge_tol": 1.5}, "merge_tol"),  # version 2: merge_tol apart from tol
+        ([[[1]]], [1, 1], {"merge_tol": -1.0}, "merge_tol"),
         ([[[1]]], [1, 1], {"minimal": "yes"}, "minimal"),
         ([[[0.5]]], [1, 1], {"exact": True}, "num"),  # a float in exact mode
         ([[["x"]]], [1, 1], {"exact": True}, "num"),

@@ -244,14 +244,6 @@ def test_published_example_two_inputs():
         np.testing.assert_allclose(k.minimal().evaluate(z), ref, rtol=1e-12)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason=(
-        "documented limit of the default tol (n^2 eps ||.||_F): rounding-level singular values of this "
-        "dense integer system are amplified above the default; test_exact_integer_system_explicit_tol "
-        "shows a tol inside the gap recovers the exact sizes"
-    ),
-)
 def test_exact_integer_system_sympy():
     # an integer 4-state system (exact data) with distinct eigenvalues -3, -17, -10 ± sqrt 6;
     # its structure is decided exactly in sympy: sizes (1, 2, 1, 0)

@@ -243,14 +243,6 @@ def test_mimo_mcmillan_degree_single_pole(residues):
         np.testing.assert_allclose(m.evaluate(z), R / (z + 2.0), rtol=1e-12, atol=1e-14)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason=(
-        "documented limit of the default tol (n^2 eps ||.||_F): this exact cancellation, hidden in dense "
-        "integer coordinates, leaves a rounding-level singular value that the reduction amplifies above "
-        "the default; test_exact_integer_system_explicit_tol shows a tol inside the gap finds it"
-    ),
-)
 def test_exact_integer_system_minimal_dimension():
     # the integer 4-state system of test_kalman: its Hankel rank (the minimal dimension) is
     # rank(O K) = 1 (sympy exact)

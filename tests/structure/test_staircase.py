@@ -27,6 +27,26 @@ def step_starts(blocks):
     return np.concatenate([[0], np.cumsum(blocks)]).astype(int)
 
 
+def balanced_columns(B):
+    """B with its columns scaled by powers of two to the exponent of the largest column norm
+    (the input balancing of the default tol, API version 2)."""
+    norms = np.linalg.norm(B, axis=0)
+    e = np.array([np.floor(np.log2(x)) if x > 0 else 0.0 for x in norms])
+    top = e[norms > 0].max() if np.any(norms > 0) else 0.0
+    return B * np.where(norms > 0, 2.0 ** (top - e), 1.0)
+
+
+def check_default_thresholds(s, A, B):
+    """The documented default of API version 2: the first step against n^2 eps ||B_hat||_F,
+    every later step against n^2 eps ||A||_F."""
+    n = A.shape[0]
+    assert s.tol == pytest.approx(n * n * EPS * np.linalg.norm(A), rel=1e-12, abs=0.0)
+    if s.thresholds:
+        assert s.thresholds[0] == pytest.approx(n * n * EPS * np.linalg.norm(balanced_columns(B)), rel=1e-12, abs=0.0)
+    for t in s.thresholds[1:]:
+        assert t == pytest.approx(s.tol, rel=1e-14)
+
+
 def check_controllability_staircase(s, A, B, C, nc, blocks):
     """Every property of a controllability staircase of the planted system (A, B, C)."""
     n, m = B.shape
@@ -36,17 +56,30 @@ def check_controllability_staircase(s, A, B, C, nc, blocks):
     assert s.blocks == blocks
     assert sum(s.blocks) == s.rank
     assert s.n_states == n
-    # default tolerance n^2 eps max(||A||_F, ||B||_F) (the documented formula)
-    assert s.tol == pytest.approx(n * n * EPS * scale, rel=1e-12, abs=0.0)
+    # default tolerance (version 2: each step against its own data block)
+    check_default_thresholds(s, A, B)
+    tol = max(s.thresholds, default=s.tol)
     # Q orthogonal (identity Q^T Q = I)
     Q = s.transform
     assert Q.shape == (n, n)
     assert np.linalg.norm(Q.T @ Q - np.eye(n)) <= 10 * max(n, 1) * EPS
     # the transformed matrices are Q^T A Q, Q^T B, C Q (identity) up to the zeroed
     # parts, whose norm is at most tol per step
-    slack = 100 * max(n, 1) * EPS * scale + len(s.singular_values) * s.tol
+    slack = 100 * max(n, 1) * EPS * scale + len(s.singular_values) * tol
     assert np.linalg.norm(Q.T @ A @ Q - s.a) <= slack
     assert np.linalg.norm(Q.T @ B - s.b) <= slack
+
+    # the reported split residual is that of the returned Q (identity)
+    def rel(x, y):
+        return 0.0 if x == 0 else x / y
+
+    if nc < n:
+        assert s.split_residual[0] == pytest.approx(
+            rel(np.linalg.norm((Q.T @ A @ Q)[nc:, :nc]), np.linalg.norm(A)), rel=1e-6, abs=10 * EPS
+        )
+        assert s.split_residual[1] == pytest.approx(
+            rel(np.linalg.norm((Q.T @ B)[nc:]), np.linalg.norm(B)), rel=1e-6, abs=10 * EPS
+        )
     if C is not None:
         assert np.linalg.norm(C @ Q - s.c) <= 100 * max(n, 1) * EPS * np.linalg.norm(C)
     else:
@@ -58,8 +91,9 @@ def check_controllability_staircase(s, A, B, C, nc, blocks):
     if s.blocks:
         assert np.all(s.b[st[1] :, :] == 0.0)
         # B_1 of full row rank k_1
-        sv = np.linalg.svd(s.b[: st[1]], compute_uv=False)
-        assert sv.min() > s.tol
+        # B_1 of full row rank k_1: the first step decided on the balanced columns Q^T B_hat
+        sv = np.linalg.svd((Q.T @ balanced_columns(B))[: st[1]], compute_uv=False)
+        assert sv.min() > s.thresholds[0]
     for i in range(len(s.blocks)):
         cols = slice(st[i], st[i + 1])
         below = st[i + 2] if i + 2 < len(st) else n
@@ -68,18 +102,18 @@ def check_controllability_staircase(s, A, B, C, nc, blocks):
             sub = s.a[st[i + 1] : st[i + 2], cols]
             sv = np.linalg.svd(sub, compute_uv=False)
             assert len(sv) == s.blocks[i + 1]  # k_{i+1} <= k_i
-            assert sv.min() > s.tol, "subdiagonal block not of full row rank"
-    # the decisions: kept singular values above tol, discarded ones not
-    assert len(s.singular_values) == len(s.rank_gaps)
-    for sv, (kept, dropped) in zip(s.singular_values, s.rank_gaps):
+            assert sv.min() > s.thresholds[i + 1], "subdiagonal block not of full row rank"
+    # the decisions: kept singular values above each step's threshold, discarded ones not
+    assert len(s.singular_values) == len(s.rank_gaps) == len(s.thresholds) == len(s.backward_errors)
+    for sv, (kept, dropped), t in zip(s.singular_values, s.rank_gaps, s.thresholds):
         assert np.all(np.diff(sv) <= 0)  # descending
-        big = sv[sv > s.tol]
+        big = sv[sv > t]
         assert (kept is None) == (big.size == 0)
         if kept is not None:
-            assert kept == big[-1] and kept > s.tol
-        assert dropped <= s.tol
-    for k, sv in zip(s.blocks, s.singular_values):
-        assert int(np.sum(sv > s.tol)) == k
+            assert kept == big[-1] and kept > t
+        assert dropped <= t
+    for k, sv, t in zip(s.blocks, s.singular_values, s.thresholds):
+        assert int(np.sum(sv > t)) == k
     # the controllable subspace is Q[:, :nc]
     return Q[:, :nc]
 
@@ -141,11 +175,13 @@ def test_planted_observability_staircase(n, m, blocks):
     no = sum(blocks)
     s = sw.observability_staircase(A, B, C)
     assert s.rank == no and s.blocks == blocks
-    assert s.tol == pytest.approx(n * n * EPS * max(np.linalg.norm(A), np.linalg.norm(C)), rel=1e-12, abs=0.0)
+    # default tolerance (version 2), the dual of the controllability one: rows of C
+    check_default_thresholds(s, A.T, C.T)
+    tol = max(s.thresholds, default=s.tol)
     Q = s.transform
     assert np.linalg.norm(Q.T @ Q - np.eye(n)) <= 10 * max(n, 1) * EPS
     scale = max(np.linalg.norm(A), np.linalg.norm(C))
-    slack = 100 * max(n, 1) * EPS * scale + len(s.singular_values) * s.tol
+    slack = 100 * max(n, 1) * EPS * scale + len(s.singular_values) * tol
     assert np.linalg.norm(Q.T @ A @ Q - s.a) <= slack
     assert np.linalg.norm(C @ Q - s.c) <= slack
     assert np.linalg.norm(Q.T @ B - s.b) <= 100 * max(n, 1) * EPS * np.linalg.norm(B)
@@ -155,14 +191,14 @@ def test_planted_observability_staircase(n, m, blocks):
     st = step_starts(blocks)
     if blocks:
         assert np.all(s.c[:, st[1] :] == 0.0)
-        assert np.linalg.svd(s.c[:, : st[1]], compute_uv=False).min() > s.tol
+        assert np.linalg.svd(balanced_columns(C.T).T @ Q[:, : st[1]], compute_uv=False).min() > s.thresholds[0]
     for i in range(len(blocks)):
         rows = slice(st[i], st[i + 1])
         right = st[i + 2] if i + 2 < len(st) else n
         assert np.all(s.a[rows, right:] == 0.0)
         if i + 1 < len(blocks):
             sv = np.linalg.svd(s.a[rows, st[i + 1] : st[i + 2]], compute_uv=False)
-            assert len(sv) == blocks[i + 1] and sv.min() > s.tol
+            assert len(sv) == blocks[i + 1] and sv.min() > s.thresholds[i + 1]
     # unobservable subspace = Q[:, no:] = U^-T * span(e_{no+1}..e_n): orthogonal to the
     # observable directions (identity: C x = 0 and C A^k x = 0 there)
     if no < n:

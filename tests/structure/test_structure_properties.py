@@ -38,7 +38,8 @@ def staircase_systems(draw):
 
 
 def kept(s):
-    return [sv[sv > s.tol] for sv in s.singular_values]
+    # each step against its own threshold (API version 2)
+    return [sv[sv > t] for sv, t in zip(s.singular_values, s.thresholds)]
 
 
 @SETTINGS

@@ -86,7 +86,18 @@ def controllability_staircase(a: Any, b: Any, c: Any = None, *, tol: Optional[fl
     c : (p, n) array_like, optional
         Carried along (``C Q``) when given.
     tol : float, optional
-        Singular values above tol count. Default ``n**2 * eps * max(||A||_F, ||B||_F)``.
+        Singular values above tol count (absolute, every step). Default (scale invariant,
+        API version 2): the first step keeps the singular values of ``B_hat`` above
+        ``n**2 * eps * ||B_hat||_F``, where ``B_hat`` is B with its columns scaled by powers
+        of two to the exponent of the largest column norm; every later step those of its
+        block of A above ``n**2 * eps * ||A||_F`` (``.thresholds`` holds each). The default
+        then searches for rounding-level values that the chain of steps amplified: candidate
+        factors from the kept values between ``n**2 * eps`` and ``sqrt(eps)`` relative, and
+        an eigenvector-guided split (PBH test ``|v^T B_hat| <= 1e-8 ||v|| ||B_hat||_F`` for
+        left eigenvectors v, tried when a kept value is below ``1e-2`` relative); a smaller
+        controllable part is accepted only when it reproduces ``A^k B`` for ``k < 2n`` to
+        ``200 n**2 eps`` relative. Decisions do not change when the inputs are scaled or all
+        states by one factor, nor (up to rounding) under orthogonal coordinates.
 
     Returns
     -------
@@ -121,7 +132,9 @@ def observability_staircase(a: Any, b: Any, c: Any, *, tol: Optional[float] = No
     r"""Observability staircase form: the dual of :func:`controllability_staircase`.
 
     ``Q^T A Q = [[A_o, 0], [A_21, A_u]]``, ``C Q = [C_o, 0]``, observable part first;
-    ``.b`` is ``Q^T B`` (``b`` may be None). Default tol ``n**2 * eps * max(||A||_F, ||C||_F)``.
+    ``.b`` is ``Q^T B`` (``b`` may be None). Default tol: the dual of the controllability
+    one (the first step against ``n**2 * eps * ||C_hat||_F``, C with its rows scaled by
+    powers of two to one exponent, later steps against ``n**2 * eps * ||A||_F``).
 
     Examples
     --------
@@ -172,9 +185,16 @@ def kalman_decomposition(a: Any, b: Any, c: Any, d: Any, *, tol: Optional[float]
     ``T^-1 B = [B1; B2; 0; 0]``, ``C T = [C1, 0, C3, 0]``.
 
     The rank decisions are made on the model balanced by an exact power-of-two diagonal
-    scaling (default tol as :func:`minimal_realization`); when the three decisions
-    (controllable subspace, unobservable subspace, and their intersection) disagree, no
-    consistent decomposition exists at that tol and ModelError says so.
+    scaling (default tol as :func:`minimal_realization`, scale invariant); when the three
+    decisions (controllable subspace, unobservable subspace, and their intersection)
+    disagree, no consistent decomposition exists at that tol and ModelError says so.
+
+    Verification: the result is accepted under the default when the pattern residual is at
+    most ``100 n eps max(1, cond T)`` and the minimal part's Markov residual (see
+    :func:`minimal_realization`) at most ``200 n**2 eps``; larger candidate factors are
+    tried first, the reduction by exact zeros last; otherwise ModelError. With an explicit
+    tol the call is refused when more than half of B or of C (Frobenius norm) would be set
+    to zero: B is never zeroed silently. The figures are in ``info``.
 
     Returns
     -------
@@ -199,15 +219,28 @@ def minimal_realization(a: Any, b: Any, c: Any, d: Any, *, tol: Optional[float] 
 
     The model is balanced by an exact power-of-two diagonal scaling, then a
     controllability staircase keeps the controllable part and an observability staircase of
-    that part keeps its observable part (both orthogonal). States that are unreachable or
-    unobservable in the given coordinates are always removed with the default tol
-    (``n**2 * eps * norm``, on the balanced model); an exact pole-zero cancellation hidden
-    in dense coordinates leaves a rounding-level singular value that an ill-conditioned
-    reduction can lift above the default: read the singular values in ``info`` and pass a
-    ``tol`` inside their gap. ``info`` holds
-    ``"controllable_dimension"``, ``"minimal_dimension"`` and the singular values each
-    decision was made on (``"controllability_singular_values"``,
-    ``"observability_singular_values"``).
+    that part keeps its observable part (both orthogonal). Default tol (scale invariant,
+    API version 2; n the order of the model): each step against the norm of its own data
+    block of the balanced model, ``n**2 * eps * ||B_hat||_F`` at the first controllability
+    step (B's columns scaled by powers of two to one exponent), ``n**2 * eps * ||C_hat||_F``
+    at the first observability step (C's rows likewise), ``n**2 * eps * ||A||_F`` later; so
+    the decisions do not change when inputs, outputs or states are scaled.
+
+    Verification: the result's Markov parameters ``C A^k B`` (``k < 2n``, A scaled by an
+    upper bound of its 2-norm, inputs and outputs to unit exponent) are compared with the
+    model's; ``info["markov_residual"]`` must not exceed ``info["markov_tolerance"]``
+    (``200 n**2 eps``). Under the default, rounding-level singular values amplified above
+    ``n**2 eps`` (exact cancellations hidden in dense coordinates) are found by trying the
+    relative factors of kept values up to ``sqrt(eps)`` (and the eigenvector-guided split of
+    :func:`controllability_staircase`); only a verified smaller model is taken. A default
+    result that fails the check falls back to exact zeros only, then to ModelError. With
+    an explicit ``tol`` (absolute, on the balanced model) the result is refused when its
+    residual exceeds ``max(200 n**2 eps, min(1/2, 100 tol / min(||A||_F, ||B||_F, ||C||_F)))``.
+    ``info`` holds ``"controllable_dimension"``, ``"minimal_dimension"``, the singular
+    values each decision was made on (``"controllability_singular_values"``,
+    ``"observability_singular_values"``), ``"thresholds"``, ``"backward_error"`` (per
+    step), ``"split_residual"``, ``"markov_residual"``, ``"markov_tolerance"`` and
+    ``"tol_factor"`` (the relative factor used; None for an explicit tol).
 
     Examples
     --------

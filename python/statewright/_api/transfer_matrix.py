@@ -51,6 +51,40 @@ def _shapes(num: np.ndarray, den: np.ndarray) -> np.ndarray:
     return den
 
 
+def _entries(num: np.ndarray, den: np.ndarray, s: complex) -> np.ndarray:
+    """The given entries ``num_ij(s) / den_ij(s)`` (numpy's polyval; zero numerators give 0)."""
+    p, m, _ = num.shape
+    out = np.zeros((p, m), dtype=complex)
+    for i in range(p):
+        for j in range(m):
+            if np.any(num[i, j] != 0):
+                out[i, j] = np.polyval(num[i, j], s) / np.polyval(den[i, j], s)
+    return out
+
+
+def _merge_error(a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, num: np.ndarray, den: np.ndarray) -> float:
+    """Largest relative difference between the realization and the given entries at the
+    check points of a merge: four points at distance ``1e-2 |lambda|`` around each pole
+    ``lambda`` of the realization (``1e-2 rho`` for a pole at 0, rho the largest pole
+    magnitude, 1 if all are 0) and eight on the circle of radius ``2 rho``."""
+    n = a.shape[0]
+    if n == 0:
+        return 0.0
+    poles = np.linalg.eigvals(a)
+    rho = float(np.max(np.abs(poles))) or 1.0
+    ring = np.exp(1j * (np.pi / 4 + np.pi / 2 * np.arange(4)))
+    pts = [lam + 1e-2 * (abs(lam) or rho) * ring for lam in poles]
+    pts.append(2 * rho * np.exp(1j * (np.pi / 8 + np.pi / 4 * np.arange(8))))
+    worst = 0.0
+    for s in np.concatenate(pts):
+        want = _entries(num, den, complex(s))
+        got = c @ np.linalg.solve(s * np.eye(n) - a, b) + d
+        scale = float(np.max(np.abs(want)))
+        if scale > 0 and np.isfinite(scale):
+            worst = max(worst, float(np.max(np.abs(got - want))) / scale)
+    return worst
+
+
 def realize_transfer_matrix(
     num: Any,
     den: Any,
@@ -58,6 +92,7 @@ def realize_transfer_matrix(
     *,
     minimal: bool = False,
     tol: Optional[float] = None,
+    merge_tol: Optional[float] = None,
     exact: bool = False,
 ) -> Realization:
     r"""State-space realization of a p x m transfer matrix in a block companion form.
@@ -92,10 +127,18 @@ def realize_transfer_matrix(
     minimal : bool
         Follow with :func:`minimal_realization` (float mode only); ``tol`` is passed on.
     tol : float, optional
+        The rank tolerance of :func:`minimal_realization` with ``minimal=True`` (absolute;
+        default its scale-invariant default). Not used otherwise.
+    merge_tol : float, optional
         Float mode: two computed roots ``r``, ``q`` of the denominators count as one when
-        ``|r - q| <= tol * max(|r|, |q|)`` (default ``1e-8``; must be in [0, 1)). With
-        ``minimal=True`` also the rank tolerance of :func:`minimal_realization` (whose
-        default is ``n**2 * eps * norm``). Checked but not used with ``exact=True``.
+        ``|r - q| <= merge_tol * max(|r|, |q|)`` (relative; default ``1e-8``; must be in
+        [0, 1)). A merge is verified: the merged realization is compared with the given
+        entries at four points at distance ``1e-2 |lambda|`` around each of its poles
+        ``lambda`` and eight on the circle of radius twice the largest pole magnitude; when
+        the largest relative difference exceeds ``max(merge_tol, 1e-10)`` the merge is
+        refused and the realization without merging (exactly equal roots only, more
+        states, correct) is returned; ``info["merge_error"]`` and ``info["merge_refused"]``
+        say which. Checked but not used with ``exact=True``.
     exact : bool
         Exact rational arithmetic: entries are ints, Fractions or decimal strings; the
         least common multiples come from Euclid's algorithm, results are object arrays of
@@ -113,7 +156,7 @@ def realize_transfer_matrix(
     ------
     ModelError
         Wrong shapes; empty polynomials; a zero denominator (naming the entry); an improper
-        entry (naming it); NaN or infinity; unknown ``form``; a ``tol`` outside [0, 1);
+        entry (naming it); NaN or infinity; unknown ``form``; a ``merge_tol`` outside [0, 1);
         a float in exact mode; ``minimal=True`` with ``exact=True``.
 
     Notes
@@ -153,8 +196,9 @@ def realize_transfer_matrix(
     form = v.check_option(form, "form", TRANSFER_MATRIX_FORMS)
     minimal = v.check_flag(minimal, "minimal")
     t = v.tol(tol)
-    if t is not None and not t < 1:
-        raise ModelError(f"tol: the root-merging tolerance must be in [0, 1), found {t}")
+    mt = v.tol(merge_tol, "merge_tol") if merge_tol is not None else None
+    if mt is not None and not mt < 1:
+        raise ModelError(f"merge_tol: the root-merging tolerance must be in [0, 1), found {mt}")
     if v.check_flag(exact, "exact"):
         if minimal:
             raise ModelError(
@@ -173,8 +217,25 @@ def realize_transfer_matrix(
     fn = v._float_array(num, "num")
     fdn = v._float_array(den, "den")
     fdn = np.ascontiguousarray(_shapes(fn, fdn))
-    (a, b, c, d), info = _core.realize_transfer_matrix_float(fn, fdn, form, t)
+    (a, b, c, d), info = _core.realize_transfer_matrix_float(fn, fdn, form, mt)
     info = dict(info)
+    used = DEFAULT_MERGE_TOL if mt is None else mt
+    unmerged = None
+    if used > 0:
+        (a0, b0, c0, d0), info0 = _core.realize_transfer_matrix_float(fn, fdn, form, 0.0)
+        if a0.shape[0] > a.shape[0]:
+            unmerged = (a0, b0, c0, d0), dict(info0)
+    if unmerged is not None:
+        err = _merge_error(a, b, c, d, fn, fdn)
+        info["merge_error"] = err
+        info["merge_refused"] = bool(err > max(used, 1e-10))
+        if info["merge_refused"]:
+            (a, b, c, d), info0 = unmerged
+            info0.update(merge_error=err, merge_refused=True, merge_tol=used)
+            info = info0
+    else:
+        info["merge_error"] = 0.0
+        info["merge_refused"] = False
     if not minimal:
         return Realization._trusted(a, b, c, d, info, frozen=True)
     reduced = minimal_realization(a, b, c, d, tol=t)

@@ -38,13 +38,46 @@ class Staircase:
         (None when none was) and the largest one discarded (0.0 when none was), on either
         side of ``tol``. (``margins`` is a deprecated alias, kept for one version.)
     tol : float
-        The tolerance used.
+        The tolerance used: an explicit ``tol``, or under the default the threshold of the
+        steps after the first (``n**2 * eps * ||A||_F``).
+    thresholds : list of float
+        The threshold each step's singular values were judged against (above it they
+        count). Default: ``n**2 * eps * ||B_hat||_F`` for the first step (``B_hat`` is B
+        with its columns scaled by powers of two to the exponent of the largest column
+        norm; its singular values are the ones recorded), ``n**2 * eps * ||A||_F`` later.
+    backward_errors : list of float
+        For each step, the norm of what its decision discarded relative to the data it was
+        judged against (``||B_hat||_F`` at the first step, ``||A||_F`` later).
+    split_residual : (float, float)
+        A posteriori backward error of the final split, from the returned Q and the data:
+        ``||(Q^T A Q)_21||_F / ||A||_F`` and ``||(Q^T B)_2||_F / ||B||_F``.
     """
 
-    __slots__ = ("a", "b", "c", "transform", "blocks", "rank", "singular_values", "rank_gaps", "tol", "kind")
+    __slots__ = (
+        "a",
+        "b",
+        "c",
+        "transform",
+        "blocks",
+        "rank",
+        "singular_values",
+        "rank_gaps",
+        "tol",
+        "kind",
+        "thresholds",
+        "backward_errors",
+        "split_residual",
+    )
 
     def __init__(self, raw: Tuple[Any, ...], kind: str) -> None:
-        a, b, c, q, blocks, rank, svs, kept, tol = raw
+        a, b, c, q, blocks, rank, svs, kept, tol = raw[:9]
+        if len(raw) >= 12:
+            thresholds, backward, split = raw[9], raw[10], raw[11]
+        else:  # a pickle of the version-1 result: one tol for every step
+            thresholds, backward, split = [tol] * len(svs), [float("nan")] * len(svs), (float("nan"),) * 2
+        self.thresholds: List[float] = [float(x) for x in thresholds]
+        self.backward_errors: List[float] = [float(x) for x in backward]
+        self.split_residual: Tuple[float, float] = (float(split[0]), float(split[1]))
         self.a: np.ndarray = frozen(a)
         self.b: np.ndarray = frozen(b)
         self.c: Optional[np.ndarray] = None if c is None else frozen(c)
@@ -73,7 +106,7 @@ class Staircase:
         return self.rank_gaps
 
     def __reduce__(self) -> Tuple[Any, ...]:
-        kept = [len(s) - sum(1 for x in s if x <= self.tol) for s in self.singular_values]
+        kept = [len(s) - sum(1 for x in s if x <= t) for s, t in zip(self.singular_values, self.thresholds)]
         raw = (
             np.array(self.a),
             np.array(self.b),
@@ -84,6 +117,9 @@ class Staircase:
             [np.array(s) for s in self.singular_values],
             kept,
             self.tol,
+            list(self.thresholds),
+            list(self.backward_errors),
+            self.split_residual,
         )
         return (Staircase, (raw, self.kind))
 
@@ -146,7 +182,14 @@ class Decomposition:
         Dimensions of the four parts.
     info : mapping
         ``"condition"``: 2-norm condition number of T; ``"pattern_residual"``: the largest
-        entry set to zero by the pattern, relative to its matrix's norm.
+        entry set to zero by the pattern, relative to its matrix's norm; ``"zeroed_b"``,
+        ``"zeroed_c"``: the Frobenius norms of the parts of ``T^-1 B`` and ``C T`` set to
+        zero, relative to ``||B||_F``, ``||C||_F``; ``"markov_residual"``: the
+        Markov-parameter residual of the minimal part against the model;
+        ``"backward_error"``: per staircase (controllable subspace, its unobservable part,
+        the unobservable subspace) the backward error of each step and the split residuals
+        (A, then B or C); ``"tol_factor"``: the relative factor of the decisions (None for an
+        explicit tol).
     """
 
     __slots__ = ("realization", "transform", "sizes", "info")

@@ -1,0 +1,131 @@
+"""Seeded surveys of the rank decisions (README figures).
+
+1. Planted uncontrollable subspaces: A = [[A_c, A_12], [0, A_u]], B = [B_c; 0] with
+   Gaussian blocks, hidden by a random orthogonal change of coordinates; the controllable
+   dimension is known by construction (generic Gaussian (A_c, B_c) is controllable).
+   Reported: how often the planted dimension is recovered by the staircase at its default
+   tol, by the version-1 default (one tol n^2 eps max(||A||_F, ||B||_F) for every step,
+   passed explicitly), and by minimal_realization (controllable dimension after its
+   verified candidate search), and what the PBH distance sigma_min([A - lambda I, B]) of
+   the computed eigenvalues says (numpy / SciPy reference: the count of eigenvalues whose
+   PBH distance is below 1e-8 ||[A, B]||).
+2. SISO controllable canonical realizations of integer transfer functions with exact
+   pole-zero cancellations: minimal_realization's order against the degree of the
+   denominator after sympy's cancel (exact reference).
+
+Usage: python scripts/structure_survey.py [--quick]
+"""
+
+import sys
+import time
+
+import numpy as np
+import sympy
+
+import statewright as sw
+
+EPS = np.finfo(float).eps
+
+
+def orthogonal(n, rng):
+    q, r = np.linalg.qr(rng.standard_normal((n, n)))
+    return q * np.sign(np.diag(r))
+
+
+def planted(n, m, nu, rng):
+    nc = n - nu
+    A = rng.standard_normal((n, n)) / np.sqrt(n)
+    A[nc:, :nc] = 0.0
+    B = np.zeros((n, m))
+    B[:nc] = rng.standard_normal((nc, m))
+    Q = orthogonal(n, rng)
+    return Q @ A @ Q.T, Q @ B, nc
+
+
+def pbh_count(A, B):
+    """Number of eigenvalues of A (numpy) with sigma_min([A - lambda I, B]) below 1e-8 ||[A, B]||."""
+    n = A.shape[0]
+    scale = np.linalg.norm(np.hstack([A, B]))
+    count = 0
+    for lam in np.linalg.eigvals(A):
+        s = np.linalg.svd(np.hstack([A - lam * np.eye(n), B]), compute_uv=False)[-1]
+        count += s <= 1e-8 * scale
+    return n - count
+
+
+def survey_planted(sizes, seeds):
+    print("Planted uncontrollable subspaces (random orthogonal coordinates)")
+    print(f"{'n':>4} {'m':>2} {'uncontr.':>8} {'cases':>5} {'v1 default':>10} {'staircase':>9} {'minimal':>8} {'PBH ref':>8}")
+    totals = np.zeros(4)
+    count = 0
+    for n in sizes:
+        for m in (1, 2):
+            for frac in (0.1, 0.3, 0.5):
+                hits = np.zeros(4)
+                for seed in range(seeds):
+                    rng = np.random.default_rng(10_000 * n + 100 * m + int(frac * 10) + 7 * seed)
+                    nu = max(1, int(round(frac * n)))
+                    A, B, nc = planted(n, m, nu, rng)
+                    C = rng.standard_normal((1, n))
+                    v1 = n * n * EPS * max(np.linalg.norm(A), np.linalg.norm(B))
+                    hits[0] += sw.controllability_staircase(A, B, tol=v1).rank == nc
+                    hits[1] += sw.controllability_staircase(A, B).rank == nc
+                    try:
+                        mr = sw.minimal_realization(A, B, C, np.zeros((1, m)))
+                        hits[2] += mr.info["controllable_dimension"] == nc
+                    except sw.ModelError:
+                        pass
+                    hits[3] += pbh_count(A, B) == nc if n <= 100 else 0
+                totals += hits
+                count += seeds
+                pbh = f"{100 * hits[3] / seeds:7.0f}%" if n <= 100 else "     n/a"
+                print(
+                    f"{n:>4} {m:>2} {frac:>7.0%} {seeds:>5} {100 * hits[0] / seeds:>9.0f}% "
+                    f"{100 * hits[1] / seeds:>8.0f}% {100 * hits[2] / seeds:>7.0f}% {pbh}"
+                )
+    print(
+        f"all: {count} cases; v1 default {100 * totals[0] / count:.1f}%, staircase {100 * totals[1] / count:.1f}%, "
+        f"minimal {100 * totals[2] / count:.1f}%"
+    )
+
+
+def survey_siso(cases):
+    print("SISO integer pole-zero cancellations (controllable canonical form; sympy cancel reference)")
+    s = sympy.symbols("s")
+    rng = np.random.default_rng(77)
+    hits_new = hits_v1 = 0
+    worst = 0.0
+    for _ in range(cases):
+        common = [int(x) for x in rng.integers(-6, 7, rng.integers(1, 3))]
+        poles = [int(x) for x in rng.integers(-9, 10, rng.integers(1, 4))]
+        zeros = [int(x) for x in rng.integers(-9, 10, rng.integers(0, len(poles)))]
+        num = sympy.expand(sympy.prod([s - z for z in zeros + common]) * int(rng.integers(1, 5)))
+        den = sympy.expand(sympy.prod([s - p for p in poles + common]))
+        reduced = sympy.cancel(num / den)
+        degree = sympy.degree(sympy.denom(reduced), s)
+        nc = [float(x) for x in sympy.Poly(num, s).all_coeffs()]
+        dc = [float(x) for x in sympy.Poly(den, s).all_coeffs()]
+        r = sw.realize(nc, dc, "controllable_canonical")
+        a, b, c, d = r
+        m = sw.minimal_realization(a, b, c, d)
+        hits_new += m.n_states == degree
+        worst = max(worst, m.info["markov_residual"])
+        n = a.shape[0]
+        v1 = n * n * EPS * max(np.linalg.norm(a), np.linalg.norm(b), np.linalg.norm(c))
+        try:
+            hits_v1 += sw.minimal_realization(a, b, c, d, tol=v1).n_states == degree
+        except sw.ModelError:
+            pass
+    print(
+        f"{cases} cases: McMillan degree reached {100 * hits_new / cases:.1f}% (default), "
+        f"{100 * hits_v1 / cases:.1f}% with the version-1 style tol n^2 eps max(||A||, ||B||, ||C||); "
+        f"largest Markov residual {worst:.1e}"
+    )
+
+
+if __name__ == "__main__":
+    quick = "--quick" in sys.argv
+    t0 = time.perf_counter()
+    survey_planted((20, 50) if quick else (20, 50, 100, 200, 300), 3 if quick else 10)
+    survey_siso(50 if quick else 300)
+    print(f"({time.perf_counter() - t0:.0f} s)")

@@ -1,0 +1,73 @@
+"""Verification of results that remove states, and planted structure in long weak chains.
+
+References: planted constructions (sizes known by construction, identity), numpy solves
+of C (sI - A)^-1 B, and the PBH eigenvector test (identity: a mode is uncontrollable iff
+its left eigenvector v has v^T B = 0).
+"""
+
+import numpy as np
+import pytest
+
+import statewright as sw
+from structure_helpers import assert_same_response, orthogonal
+
+
+def planted_half(n, m, seed):
+    rng = np.random.default_rng(seed)
+    nc = n // 2
+    A = rng.standard_normal((n, n)) / np.sqrt(n)
+    A[nc:, :nc] = 0.0
+    B = np.zeros((n, m))
+    B[:nc] = rng.standard_normal((nc, m))
+    Q = orthogonal(n, rng)
+    return Q @ A @ Q.T, Q @ B, nc, Q
+
+
+@pytest.mark.parametrize("seed", range(4))
+@pytest.mark.parametrize("n,m", [(40, 1), (60, 1), (80, 2)])
+def test_long_weak_chain_planted_dimension(n, m, seed):
+    # one input reaching half the states of a random pair: the staircase step at the split is
+    # far above rounding (amplified along the chain); the verified eigenvector split finds it
+    A, B, nc, Q = planted_half(n, m, 900 + seed)
+    s = sw.controllability_staircase(A, B)
+    assert s.rank == nc
+    # the reached subspace is the planted one, span Q[:, :nc] (identity)
+    P = s.transform[:, :nc]
+    assert np.linalg.norm(Q[:, nc:].T @ P) <= 1e-6
+    # the split's residual is reported and small; every step has a threshold and an error
+    assert s.split_residual[0] <= 1e-7 and s.split_residual[1] <= 1e-7
+    assert len(s.thresholds) == len(s.backward_errors) == len(s.singular_values)
+    # the transformed A is Q^T A Q up to the zeroed coupling, whose size is the reported
+    # split residual (identity)
+    err = np.linalg.norm(s.transform.T @ A @ s.transform - s.a) / np.linalg.norm(A)
+    assert err <= 2 * s.split_residual[0] + 1e-12
+    assert not sw.is_controllable(A, B)
+    C = np.random.default_rng(seed).standard_normal((1, n))
+    mr = sw.minimal_realization(A, B, C, np.zeros((1, m)))
+    assert mr.info["controllable_dimension"] == nc and mr.n_states == nc
+    assert mr.info["markov_residual"] <= mr.info["markov_tolerance"]
+
+
+def test_kalman_never_zeroes_b_silently():
+    # an explicit tol far above ||B||: everything would look uncontrollable and B would be
+    # set to zero; refused (version 1 returned it with only a large pattern residual)
+    A = np.array([[-1.0, 2.0], [0.0, -3.0]])
+    B = np.array([[1e-6], [1e-6]])
+    C = np.array([[1.0, 1.0]])
+    with pytest.raises(sw.ModelError, match="zero"):
+        sw.kalman_decomposition(A, B, C, [[0.0]], tol=1e-3)
+    k = sw.kalman_decomposition(A, B, C, [[0.0]])
+    assert k.sizes[0] + k.sizes[1] == 2 and k.info["zeroed_b"] <= 1e-12
+    assert_same_response(tuple(k.minimal()), (A, B, C, np.zeros((1, 1))))
+
+
+def test_minimal_refuses_a_tol_that_removes_what_matters():
+    # a tol of 3 (above ||B||_F = sqrt 3) removes every state of a model whose response is
+    # of order 1 (G(s) = sum 1/(s + k), identity): refused, not the zero model
+    A = np.diag([-1.0, -2.0, -3.0])
+    B = np.array([[1.0], [1.0], [1.0]])
+    C = np.array([[1.0, 1.0, 1.0]])
+    with pytest.raises(sw.ModelError, match="Markov"):
+        sw.minimal_realization(A, B, C, [[0.0]], tol=3.0)
+    m = sw.minimal_realization(A, B, C, [[0.0]])
+    assert m.n_states == 3 and m.info["markov_residual"] <= m.info["markov_tolerance"]
