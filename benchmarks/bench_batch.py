@@ -75,8 +75,16 @@ def p2() -> dict:
     t_ours = best_of(repeat(sw.realize), 5) / loops
     t_theirs = best_of(repeat(signal.tf2ss), 5) / loops
     n_list, d_list = n0.tolist(), d0.tolist()  # plain lists, as typed in a notebook
-    t_lists = best_of(lambda: [sw.realize(n_list, d_list) for _ in range(loops)], 5) / loops
-    t_theirs_lists = best_of(lambda: [signal.tf2ss(n_list, d_list) for _ in range(loops)], 5) / loops
+
+    def repeat_lists(fn):
+        def run() -> None:
+            for _ in range(loops):
+                fn(n_list, d_list)
+
+        return run
+
+    t_lists = best_of(repeat_lists(sw.realize), 5) / loops
+    t_theirs_lists = best_of(repeat_lists(signal.tf2ss), 5) / loops
     return {"ours": t_ours, "scipy": t_theirs, "ours_lists": t_lists, "scipy_lists": t_theirs_lists}
 
 
@@ -85,8 +93,16 @@ def p3() -> dict:
     num, den = random_models(1, 4, seed=3)
     a, b, c, d = sw.realize(num[0], den[0])
     loops = 5000
-    t_ours = best_of(lambda: [sw.transfer_function(a, b, c, d) for _ in range(loops)], 5) / loops
-    t_theirs = best_of(lambda: [signal.ss2tf(a, b, c, d) for _ in range(loops)], 5) / loops
+
+    def repeat(fn):
+        def run() -> None:
+            for _ in range(loops):
+                fn(a, b, c, d)
+
+        return run
+
+    t_ours = best_of(repeat(sw.transfer_function), 5) / loops
+    t_theirs = best_of(repeat(signal.ss2tf), 5) / loops
     return {"ours": t_ours, "scipy": t_theirs}
 
 
