@@ -12,6 +12,14 @@
 2. SISO controllable canonical realizations of integer transfer functions with exact
    pole-zero cancellations: minimal_realization's order against the degree of the
    denominator after sympy's cancel (exact reference).
+3. Planted Kalman structure: the four parts (controllable and observable, controllable and
+   unobservable, uncontrollable and observable, neither) of known sizes in the pattern of
+   the Kalman form with Gaussian blocks, hidden by a random orthogonal change of
+   coordinates; kalman_decomposition's sizes against the planted ones.
+4. Transfer matrices with integer coefficients (p x m entries over small integer
+   denominators, shared poles and cancellations): the order of
+   realize_transfer_matrix(minimal=True) against the McMillan degree, the rank of the
+   block Hankel matrix of the Markov parameters computed exactly in sympy.
 
 Usage: python scripts/structure_survey.py [--quick]
 """
@@ -123,9 +131,106 @@ def survey_siso(cases):
     )
 
 
+def planted_kalman(sizes, m, p, rng):
+    """A model in the pattern of the Kalman form with Gaussian blocks, parts of `sizes`."""
+    n = sum(sizes)
+    edges = np.cumsum((0,) + tuple(sizes))
+    part = [slice(edges[i], edges[i + 1]) for i in range(4)]
+    A = np.zeros((n, n))
+    pattern = [(0, 0), (0, 2), (1, 0), (1, 1), (1, 2), (1, 3), (2, 2), (3, 2), (3, 3)]
+    for i, j in pattern:
+        rows, cols = part[i].stop - part[i].start, part[j].stop - part[j].start
+        A[part[i], part[j]] = rng.standard_normal((rows, cols)) / np.sqrt(n)
+    B = np.zeros((n, m))
+    B[part[0]] = rng.standard_normal((sizes[0], m))
+    B[part[1]] = rng.standard_normal((sizes[1], m))
+    C = np.zeros((p, n))
+    C[:, part[0]] = rng.standard_normal((p, sizes[0]))
+    C[:, part[2]] = rng.standard_normal((p, sizes[2]))
+    q = orthogonal(n, rng)
+    return q @ A @ q.T, q @ B, C @ q.T
+
+
+def survey_kalman(sizes_list, seeds):
+    print("Planted Kalman structure (random orthogonal coordinates): sizes recovered")
+    hits = count = refused = 0
+    wrong = []
+    for n in sizes_list:
+        for seed in range(seeds):
+            rng = np.random.default_rng(50_000 + 31 * n + seed)
+            cut = np.sort(rng.choice(np.arange(1, n), 3, replace=False))
+            sizes = tuple(int(x) for x in np.diff(np.concatenate(([0], cut, [n]))))
+            m, p = int(rng.integers(1, 3)), int(rng.integers(1, 3))
+            A, B, C = planted_kalman(sizes, m, p, rng)
+            count += 1
+            try:
+                got = sw.kalman_decomposition(A, B, C, np.zeros((p, m))).sizes
+            except sw.ModelError:
+                refused += 1
+                continue
+            if tuple(got) == sizes:
+                hits += 1
+            else:
+                wrong.append((n, seed, sizes, tuple(got)))
+        print(f"  n = {n:>3}: {seeds} models")
+    print(
+        f"{count} cases: sizes right in {100 * hits / count:.1f}%, refused (ModelError) {refused}, "
+        f"returned with other sizes {len(wrong)} {wrong}"
+    )
+
+
+def mcmillan_degree_exact(num, den, s):
+    """Rank of the block Hankel matrix of the Markov parameters, exactly (sympy)."""
+    p, m = len(num), len(num[0])
+    g = sympy.Matrix(p, m, lambda i, j: num[i][j] / den[i][j])
+    order = sum(sympy.degree(den[i][j], s) for i in range(p) for j in range(m))
+    count = 2 * order + 1
+    series = [[sympy.series(g[i, j].subs(s, 1 / s), s, 0, count + 1).removeO() for j in range(m)] for i in range(p)]
+    markov = [
+        sympy.Matrix(p, m, lambda i, j: series[i][j].coeff(s, k)) for k in range(1, count + 1)
+    ]
+    half = order + 1
+    hankel = sympy.Matrix.vstack(*[sympy.Matrix.hstack(*markov[r : r + half]) for r in range(half)])
+    return hankel.rank()
+
+
+def survey_transfer_matrix(cases):
+    print("Integer transfer matrices: realize_transfer_matrix(minimal=True) against the McMillan degree (sympy)")
+    s = sympy.symbols("s")
+    rng = np.random.default_rng(4242)
+    hits = refused = 0
+    for _ in range(cases):
+        p, m = int(rng.integers(1, 3)), int(rng.integers(1, 3))
+        pool = [int(x) for x in rng.choice(np.arange(-6, 0), 3, replace=False)]  # shared poles
+        num, den = [], []
+        for i in range(p):
+            row_n, row_d = [], []
+            for j in range(m):
+                poles = [pool[k] for k in range(3) if rng.random() < 0.6] or [pool[0]]
+                zeros = [int(x) for x in rng.integers(-6, 1, rng.integers(0, len(poles)))]
+                row_n.append(sympy.expand(int(rng.integers(1, 4)) * sympy.prod([s - z for z in zeros])))
+                row_d.append(sympy.expand(sympy.prod([s - q for q in poles])))
+            num.append(row_n)
+            den.append(row_d)
+        degree = mcmillan_degree_exact(num, den, s)
+        k = max(sympy.degree(den[i][j], s) for i in range(p) for j in range(m)) + 1
+        pad = lambda e: [0.0] * (k - len(sympy.Poly(e, s).all_coeffs())) + [float(x) for x in sympy.Poly(e, s).all_coeffs()]
+        nums = np.array([[pad(num[i][j]) for j in range(m)] for i in range(p)])
+        dens = np.array([[pad(den[i][j]) for j in range(m)] for i in range(p)])
+        try:
+            r = sw.realize_transfer_matrix(nums, dens, minimal=True)
+        except sw.ModelError:
+            refused += 1
+            continue
+        hits += r.n_states == degree
+    print(f"{cases} cases: McMillan degree reached in {100 * hits / cases:.1f}%, refused {refused}")
+
+
 if __name__ == "__main__":
     quick = "--quick" in sys.argv
     t0 = time.perf_counter()
     survey_planted((20, 50) if quick else (20, 50, 100, 200, 300), 3 if quick else 10)
     survey_siso(50 if quick else 300)
+    survey_kalman((20, 50) if quick else (20, 50, 100, 200, 300), 3 if quick else 10)
+    survey_transfer_matrix(30 if quick else 200)
     print(f"({time.perf_counter() - t0:.0f} s)")

@@ -39,7 +39,10 @@
 //! factor found by the minimal realization's search, then the kept singular values of each
 //! passing result; the smallest minimal part that passes wins), then the default, then
 //! exact zeros only
-//! (tol 0); if none passes the call is refused with `Unverified`. With an explicit tol the
+//! (tol 0); if none passes the call is refused with `Unverified`, and so is a result whose
+//! minimal part keeps more states than the verified minimal realization of the same model,
+//! or whose controllable or observable dimension differs from the default staircase of the
+//! whole model (its sizes would be wrong although its response is right). With an explicit tol the
 //! result is refused when more than half of B or of C (in Frobenius norm) would be set to
 //! zero or the minimal part's Markov residual exceeds 1/2: B is never zeroed silently.
 //!
@@ -144,11 +147,53 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
     // The factor the minimal realization's search settled on decides the controllable and
     // the observable part together; try it first (three separate passes at a factor
     // between two rounding-level values can disagree).
+    let mut minimal_order = None;
     if let Ok(m) = super::minimal::minimal_realization(ss, None) {
+        minimal_order = Some(m.realization.n_states());
         if m.factor > f0 {
             frontier.insert(0, m.factor);
         }
     }
+    // A decomposition whose minimal part keeps more states than the verified minimal
+    // realization has missed part of the structure (its Markov check cannot see that:
+    // extra states never spoil the response), so its sizes would be a wrong answer.
+    // The same holds for the controllable and the observable dimension against the
+    // default staircases of the whole balanced model (verified searches of their own).
+    let controllable = super::staircase::controllability_staircase(&bal.a, &bal.b, None, None)
+        .map(|s| s.rank)
+        .ok();
+    let observable = super::staircase::observability_staircase(&bal.a, None, &bal.c, None)
+        .map(|s| s.rank)
+        .ok();
+    let consistent = |k: KalmanDecomposition| -> Result<KalmanDecomposition> {
+        let [co, cu, uo, _] = k.sizes;
+        let mismatch = match (minimal_order, controllable, observable) {
+            (Some(order), _, _) if co > order => Some(format!(
+                "its controllable and observable part has {co} states where the verified \
+                 minimal realization has {order}"
+            )),
+            (_, Some(r), _) if co + cu != r => Some(format!(
+                "its controllable part has {} states where the controllability staircase \
+                 finds {r}",
+                co + cu
+            )),
+            (_, _, Some(r)) if co + uo != r => Some(format!(
+                "its observable part has {} states where the observability staircase finds {r}",
+                co + uo
+            )),
+            _ => None,
+        };
+        match mismatch {
+            Some(what) => Err(ModelError::Unverified {
+                what: "the Kalman decomposition",
+                detail: format!(
+                    "{what}: the default decisions missed part of the structure (the response \
+                     check cannot see kept states); pass an explicit tol"
+                ),
+            }),
+            None => Ok(k),
+        }
+    };
     let mut best = passes(&k0).then_some(k0);
     let mut tries = 0;
     while !frontier.is_empty() && tries < MAX_TRIES {
@@ -165,13 +210,13 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
         }
     }
     if let Some(b) = best {
-        return Ok(b);
+        return consistent(b);
     }
     // The default result fails the check: keep every state that is not decided by an
     // exact zero, if that passes.
     if let Ok(keep) = decompose(ss, &bal, &scale, Tolerance::Relative(0.0)) {
         if passes(&keep) {
-            return Ok(keep);
+            return consistent(keep);
         }
     }
     Err(ModelError::Unverified {

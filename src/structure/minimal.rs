@@ -138,6 +138,27 @@ fn passes(bal: &StateSpace<f64>, t: Tolerance) -> Result<Minimal> {
     })
 }
 
+/// The default result must not keep more states than the default observability staircase
+/// of the whole (balanced) model finds observable: the reduction of the controllable part can miss
+/// unobservable states there, and the Markov check cannot see kept states.
+fn within_the_ranks(bal: &StateSpace<f64>, m: Minimal) -> Result<Minimal> {
+    let order = m.realization.n_states();
+    if let Ok(o) = super::staircase::observability_staircase(&bal.a, None, &bal.c, None) {
+        if order > o.rank {
+            return Err(ModelError::Unverified {
+                what: "the minimal realization",
+                detail: format!(
+                    "the reduction kept {order} states where the observability staircase of the \
+                     whole model finds only {} observable: the default decisions on the \
+                     controllable part missed unobservable states; pass an explicit tol",
+                    o.rank
+                ),
+            });
+        }
+    }
+    Ok(m)
+}
+
 pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Minimal> {
     check_model(ss)?;
     check_tol(tol)?;
@@ -189,11 +210,11 @@ pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Min
         }
     }
     if let Some(b) = best {
-        return Ok(b);
+        return within_the_ranks(&bal, b);
     }
     let keep = passes(&bal, Tolerance::Relative(0.0))?;
     if keep.markov_residual <= vt {
-        return Ok(keep);
+        return within_the_ranks(&bal, keep);
     }
     Err(ModelError::Unverified {
         what: "the minimal realization",
