@@ -54,7 +54,7 @@
 use super::minimal::check_model;
 use super::minimal::{candidate_factors, MAX_TRIES};
 use super::staircase::{
-    check_tol, default_factor, frobenius, leading_part, observability_with, staircase_with,
+    check_tol, default_factor, frobenius, leading_part, observability_with_split, staircase_with,
     Tolerance,
 };
 use super::verify::{markov_residual, markov_tolerance};
@@ -260,11 +260,11 @@ fn decompose(
     let nc = sc.rank;
     let r_basis = columns(&sc.q, 0, nc);
     let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), nc);
-    let so = observability_with(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
+    let so = observability_with_split(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
     let k1 = so.rank;
     let x2_balanced = r_basis.matmul(&columns(&so.q, so.rank, nc));
 
-    let full_o = observability_with(&bal.a, Some(&bal.b), &bal.c, t, None)?;
+    let full_o = observability_with_split(&bal.a, Some(&bal.b), &bal.c, t, None)?;
     let n_balanced = columns(&full_o.q, full_o.rank, n);
     // In exact arithmetic R∩N ⊂ N and R + N fits in n dimensions. Three separate rank
     // decisions can disagree when a singular value sits near tol; then no consistent

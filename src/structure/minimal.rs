@@ -43,7 +43,7 @@
 //! (1963). P. Van Dooren, IEEE Trans. Automat. Control 26 (1981).
 
 use super::staircase::{
-    check_tol, default_factor, frobenius, leading_part, observability_with, staircase_with,
+    check_tol, default_factor, frobenius, leading_part, observability_with_split, staircase_with,
     Staircase, Tolerance,
 };
 use super::verify::{markov_residual, markov_tolerance};
@@ -116,7 +116,7 @@ fn passes(bal: &StateSpace<f64>, t: Tolerance) -> Result<Minimal> {
         _ => sc,
     };
     let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), sc.rank);
-    let so = observability_with(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
+    let so = observability_with_split(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
     let (a2, b2, c2) = leading_part(&so.a, &so.b, so.c.as_ref().expect("carried"), so.rank);
     let realization = StateSpace {
         a: a2,

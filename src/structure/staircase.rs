@@ -689,6 +689,37 @@ pub fn observability_with(
     Ok(transpose_dual(dual))
 }
 
+/// [`observability_with`] followed, under a relative (default) tolerance, by the
+/// eigenvector-guided split of the dual (the PBH eigenvector test with right eigenvectors
+/// and C), verified as for controllability: the observability passes of the minimal
+/// realization and the Kalman decomposition meet the same long weak chains.
+pub(crate) fn observability_with_split(
+    a: &Matrix<f64>,
+    b: Option<&Matrix<f64>>,
+    c: &Matrix<f64>,
+    t: Tolerance,
+    reference: Option<(&Matrix<f64>, &Matrix<f64>)>,
+) -> Result<Staircase> {
+    let b = b.cloned().unwrap_or_else(|| Matrix::zeros(a.rows(), 0));
+    check_pair(a, &b, Some(c))?;
+    let (at, ct, bt) = (a.transpose(), c.transpose(), b.transpose());
+    let reference = reference.map(|(ra, rc)| (ra.transpose(), rc.transpose()));
+    let dual = staircase_with(
+        &at,
+        &ct,
+        Some(&bt),
+        t,
+        reference.as_ref().map(|(ra, rc)| (ra, rc)),
+    )?;
+    let dual = match t {
+        Tolerance::Relative(f) if f > 0.0 => {
+            eigenvector_split(&at, &ct, Some(&bt), f, &dual)?.unwrap_or(dual)
+        }
+        _ => dual,
+    };
+    Ok(transpose_dual(dual))
+}
+
 /// The observability form from the controllability staircase of the dual.
 fn transpose_dual(dual: Staircase) -> Staircase {
     Staircase {
