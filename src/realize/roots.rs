@@ -288,6 +288,35 @@ pub struct RefinedRoots {
     pub converged: bool,
 }
 
+/// The Aberth correction `N / (1 − N S)` of root k, with `N` its Newton correction and
+/// `S = Σ_{j≠k} 1/(z_k − z_j)` over the current approximations, in float64 (it only steers
+/// the step; the Newton correction carries the accuracy). Falls back to `N` when
+/// `1 − N S` is zero or not finite.
+pub fn aberth_correction(newton: (f64, f64), k: usize, approx: &[(f64, f64)]) -> (f64, f64) {
+    let (nr, ni) = newton;
+    let (zr, zi) = approx[k];
+    let (mut sr, mut si) = (0.0, 0.0);
+    for (j, &(wr, wi)) in approx.iter().enumerate() {
+        if j == k {
+            continue;
+        }
+        let (dr, di) = (zr - wr, zi - wi);
+        let d2 = dr * dr + di * di;
+        if d2 == 0.0 || !d2.is_finite() {
+            continue;
+        }
+        sr += dr / d2;
+        si -= di / d2;
+    }
+    let (tr, ti) = (1.0 - (nr * sr - ni * si), -(nr * si + ni * sr));
+    let t2 = tr * tr + ti * ti;
+    if t2 > 0.0 && t2.is_finite() {
+        ((nr * tr + ni * ti) / t2, (ni * tr - nr * ti) / t2)
+    } else {
+        (nr, ni)
+    }
+}
+
 /// Starting values: eigenvalues of the balanced companion matrix of `den` (monic, highest
 /// power first, no zero trailing coefficient), as (re, im) with pairs exactly conjugate.
 pub fn starting_values(den: &[f64]) -> Result<Vec<(f64, f64)>> {
@@ -375,29 +404,7 @@ pub fn refined_roots(den: &[f64], max_sweeps: usize) -> Result<RefinedRoots> {
                 continue;
             };
             let (nr, ni) = nk.to_pair();
-            // Aberth sum Σ_{j≠k} 1/(z_k − z_j) in float64 (it only steers the step).
-            let (zr, zi) = approx[k];
-            let (mut sr, mut si) = (0.0, 0.0);
-            for (j, &(wr, wi)) in approx.iter().enumerate() {
-                if j == k {
-                    continue;
-                }
-                let (dr, di) = (zr - wr, zi - wi);
-                let d2 = dr * dr + di * di;
-                if d2 == 0.0 || !d2.is_finite() {
-                    continue;
-                }
-                sr += dr / d2;
-                si -= di / d2;
-            }
-            // correction = N / (1 − N S)
-            let (tr, ti) = (1.0 - (nr * sr - ni * si), -(nr * si + ni * sr));
-            let t2 = tr * tr + ti * ti;
-            let (mut cr, mut ci) = if t2 > 0.0 && t2.is_finite() {
-                ((nr * tr + ni * ti) / t2, (ni * tr - nr * ti) / t2)
-            } else {
-                (nr, ni)
-            };
+            let (mut cr, mut ci) = aberth_correction((nr, ni), k, &approx);
             if !cr.is_finite() || !ci.is_finite() {
                 cr = nr;
                 ci = ni;

@@ -54,7 +54,7 @@
 use super::minimal::check_model;
 use super::minimal::{candidate_factors, MAX_TRIES};
 use super::staircase::{
-    check_tol, default_factor, frobenius, leading_part, observability_with_split, staircase_with,
+    check_tol, default_factor, frobenius, leading_part, observability_with, staircase_with,
     Tolerance,
 };
 use super::verify::{markov_residual, markov_tolerance};
@@ -251,20 +251,15 @@ fn decompose(
     };
     let sc = staircase_with(&bal.a, &bal.b, Some(&bal.c), t, None)?;
     // the eigenvector-guided split of the default (PBH test, verified; see the staircase)
-    let sc = match t {
-        Tolerance::Relative(f) if f > 0.0 => {
-            super::staircase::eigenvector_split(&bal.a, &bal.b, Some(&bal.c), f, &sc)?.unwrap_or(sc)
-        }
-        _ => sc,
-    };
+    let sc = super::staircase::with_eigenvector_split(&bal.a, &bal.b, Some(&bal.c), t, sc)?;
     let nc = sc.rank;
     let r_basis = columns(&sc.q, 0, nc);
     let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), nc);
-    let so = observability_with_split(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
+    let so = observability_with(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
     let k1 = so.rank;
     let x2_balanced = r_basis.matmul(&columns(&so.q, so.rank, nc));
 
-    let full_o = observability_with_split(&bal.a, Some(&bal.b), &bal.c, t, None)?;
+    let full_o = observability_with(&bal.a, Some(&bal.b), &bal.c, t, None)?;
     let n_balanced = columns(&full_o.q, full_o.rank, n);
     // In exact arithmetic R∩N ⊂ N and R + N fits in n dimensions. Three separate rank
     // decisions can disagree when a singular value sits near tol; then no consistent

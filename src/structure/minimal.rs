@@ -43,7 +43,7 @@
 //! (1963). P. Van Dooren, IEEE Trans. Automat. Control 26 (1981).
 
 use super::staircase::{
-    check_tol, default_factor, frobenius, leading_part, observability_with_split, staircase_with,
+    check_tol, default_factor, frobenius, leading_part, observability_with, staircase_with,
     Staircase, Tolerance,
 };
 use super::verify::{markov_residual, markov_tolerance};
@@ -109,14 +109,9 @@ pub(crate) fn candidate_factors(staircases: &[&Staircase], f0: f64) -> Vec<f64> 
 fn passes(bal: &StateSpace<f64>, t: Tolerance) -> Result<Minimal> {
     let sc = staircase_with(&bal.a, &bal.b, Some(&bal.c), t, None)?;
     // the eigenvector-guided split of the default (PBH test, verified; see the staircase)
-    let sc = match t {
-        Tolerance::Relative(f) if f > 0.0 => {
-            super::staircase::eigenvector_split(&bal.a, &bal.b, Some(&bal.c), f, &sc)?.unwrap_or(sc)
-        }
-        _ => sc,
-    };
+    let sc = super::staircase::with_eigenvector_split(&bal.a, &bal.b, Some(&bal.c), t, sc)?;
     let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), sc.rank);
-    let so = observability_with_split(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
+    let so = observability_with(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
     let (a2, b2, c2) = leading_part(&so.a, &so.b, so.c.as_ref().expect("carried"), so.rank);
     let realization = StateSpace {
         a: a2,

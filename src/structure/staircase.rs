@@ -668,32 +668,12 @@ pub fn observability_staircase(
 }
 
 /// The observability staircase with the decisions judged by `t` (the dual of
-/// [`staircase_with`]; the default balances the rows of C).
+/// [`staircase_with`]; the default balances the rows of C), followed under a relative
+/// (default) tolerance by the eigenvector-guided split of the dual (the PBH eigenvector
+/// test with right eigenvectors and C), verified as for controllability: the observability
+/// passes of the minimal realization and the Kalman decomposition meet the same long weak
+/// chains.
 pub fn observability_with(
-    a: &Matrix<f64>,
-    b: Option<&Matrix<f64>>,
-    c: &Matrix<f64>,
-    t: Tolerance,
-    reference: Option<(&Matrix<f64>, &Matrix<f64>)>,
-) -> Result<Staircase> {
-    let b = b.cloned().unwrap_or_else(|| Matrix::zeros(a.rows(), 0));
-    check_pair(a, &b, Some(c))?;
-    let reference = reference.map(|(ra, rc)| (ra.transpose(), rc.transpose()));
-    let dual = staircase_with(
-        &a.transpose(),
-        &c.transpose(),
-        Some(&b.transpose()),
-        t,
-        reference.as_ref().map(|(ra, rc)| (ra, rc)),
-    )?;
-    Ok(transpose_dual(dual))
-}
-
-/// [`observability_with`] followed, under a relative (default) tolerance, by the
-/// eigenvector-guided split of the dual (the PBH eigenvector test with right eigenvectors
-/// and C), verified as for controllability: the observability passes of the minimal
-/// realization and the Kalman decomposition meet the same long weak chains.
-pub(crate) fn observability_with_split(
     a: &Matrix<f64>,
     b: Option<&Matrix<f64>>,
     c: &Matrix<f64>,
@@ -711,13 +691,29 @@ pub(crate) fn observability_with_split(
         t,
         reference.as_ref().map(|(ra, rc)| (ra, rc)),
     )?;
-    let dual = match t {
-        Tolerance::Relative(f) if f > 0.0 => {
-            eigenvector_split(&at, &ct, Some(&bt), f, &dual)?.unwrap_or(dual)
-        }
-        _ => dual,
-    };
-    Ok(transpose_dual(dual))
+    Ok(transpose_dual(with_eigenvector_split(
+        &at,
+        &ct,
+        Some(&bt),
+        t,
+        dual,
+    )?))
+}
+
+/// `st` (a staircase of `(a, b)` judged by `t`) replaced by its eigenvector-guided split
+/// ([`eigenvector_split`]) under a relative, nonzero tolerance when the split is found and
+/// verified; otherwise `st` itself.
+pub(crate) fn with_eigenvector_split(
+    a: &Matrix<f64>,
+    b: &Matrix<f64>,
+    c: Option<&Matrix<f64>>,
+    t: Tolerance,
+    st: Staircase,
+) -> Result<Staircase> {
+    Ok(match t {
+        Tolerance::Relative(f) if f > 0.0 => eigenvector_split(a, b, c, f, &st)?.unwrap_or(st),
+        _ => st,
+    })
 }
 
 /// The observability form from the controllability staircase of the dual.

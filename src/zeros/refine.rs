@@ -34,7 +34,7 @@
 //! O. Aberth, Math. Comp. 27 (1973); L. W. Ehrlich, Comm. ACM 10 (1967); T. J. Dekker,
 //! Numer. Math. 18 (1971) (double-double arithmetic).
 
-use crate::realize::roots::{Cdd, Polynomial};
+use crate::realize::roots::{aberth_correction, Cdd, Polynomial};
 use crate::recover::certified::certified_double_double;
 use crate::recover::{transfer_function_f64, Method};
 use crate::state_space::StateSpace;
@@ -146,28 +146,7 @@ pub fn refine_siso(ss: &StateSpace<f64>, zeros: &mut [(f64, f64)]) -> Refinement
             let Some(nk) = poly.newton(z[k]) else {
                 return skip;
             };
-            let (nr, ni) = nk.to_pair();
-            let (zr, zi) = approx[k];
-            let (mut sr, mut si) = (0.0, 0.0);
-            for (j, &(wr, wi)) in approx.iter().enumerate() {
-                if j == k {
-                    continue;
-                }
-                let (dr, di) = (zr - wr, zi - wi);
-                let d2 = dr * dr + di * di;
-                if d2 == 0.0 || !d2.is_finite() {
-                    continue;
-                }
-                sr += dr / d2;
-                si -= di / d2;
-            }
-            let (tr, ti) = (1.0 - (nr * sr - ni * si), -(nr * si + ni * sr));
-            let t2 = tr * tr + ti * ti;
-            let (cr, mut ci) = if t2 > 0.0 && t2.is_finite() {
-                ((nr * tr + ni * ti) / t2, (ni * tr - nr * ti) / t2)
-            } else {
-                (nr, ni)
-            };
+            let (cr, mut ci) = aberth_correction(nk.to_pair(), k, &approx);
             if !(cr.is_finite() && ci.is_finite()) {
                 return skip;
             }
