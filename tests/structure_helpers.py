@@ -118,14 +118,15 @@ def part_slices(sizes):
     return [slice(starts[i], starts[i + 1]) for i in range(4)]
 
 
-def planted_kalman(sizes, m, p, rng):
+def planted_kalman(sizes, m, p, rng, separated=True):
     """(A, B, C) in the four-part form with the given part sizes (co, c-uo, uc-o, uc-uo).
 
     Blocks are Gaussian in the pattern of the API, so (generically) the controllable
     subspace is parts 1+2, the unobservable subspace parts 2+4, and the sizes are exact.
-    The diagonal blocks are shifted apart so that the parts' spectra are separated; the
-    couplings are not conditioned, so rank decisions on rotated copies need a tol well
-    above rounding (the tests use 1e-6).
+    With ``separated`` the diagonal blocks are shifted apart so that the parts' spectra are
+    separated; the couplings are not conditioned, so rank decisions on rotated copies need
+    a tol well above rounding (the tests use 1e-6). Without it the draws are those of
+    scripts/structure_survey.py's planted Kalman survey (the harder, unseparated case).
     """
     n = sum(sizes)
     sl = part_slices(sizes)
@@ -135,9 +136,10 @@ def planted_kalman(sizes, m, p, rng):
             if KALMAN_PATTERN[i, j]:
                 A[sl[i], sl[j]] = rng.standard_normal((sizes[i], sizes[j])) / np.sqrt(max(n, 1))
     # spread the spectra of the parts apart so PBH margins are comfortable
-    shifts = (-1.0, -2.5, -4.0, -5.5)
-    for i in range(4):
-        A[sl[i], sl[i]] += shifts[i] * np.eye(sizes[i])
+    if separated:
+        shifts = (-1.0, -2.5, -4.0, -5.5)
+        for i in range(4):
+            A[sl[i], sl[i]] += shifts[i] * np.eye(sizes[i])
     B = np.zeros((n, m))
     B[sl[0]] = rng.standard_normal((sizes[0], m))
     B[sl[1]] = rng.standard_normal((sizes[1], m))

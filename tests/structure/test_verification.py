@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 
 import statewright as sw
-from structure_helpers import assert_same_response, orthogonal
+from structure_helpers import assert_same_response, orthogonal, planted_kalman
 
 
 def planted_half(n, m, seed):
@@ -73,27 +73,6 @@ def test_minimal_refuses_a_tol_that_removes_what_matters():
     assert m.n_states == 3 and m.info["markov_residual"] <= m.info["markov_tolerance"]
 
 
-def _planted_kalman(sizes, m, p, rng):
-    # the pattern of the Kalman form with Gaussian blocks, parts of the given sizes, hidden
-    # by a random orthogonal change of coordinates (sizes known by construction); the
-    # generator of scripts/structure_survey.py, draw for draw
-    n = sum(sizes)
-    edges = np.cumsum((0,) + tuple(sizes))
-    part = [slice(edges[i], edges[i + 1]) for i in range(4)]
-    a = np.zeros((n, n))
-    for i, j in [(0, 0), (0, 2), (1, 0), (1, 1), (1, 2), (1, 3), (2, 2), (3, 2), (3, 3)]:
-        a[part[i], part[j]] = rng.standard_normal((sizes[i], sizes[j])) / np.sqrt(n)
-    b = np.zeros((n, m))
-    b[part[0]] = rng.standard_normal((sizes[0], m))
-    b[part[1]] = rng.standard_normal((sizes[1], m))
-    c = np.zeros((p, n))
-    c[:, part[0]] = rng.standard_normal((p, sizes[0]))
-    c[:, part[2]] = rng.standard_normal((p, sizes[2]))
-    q, r = np.linalg.qr(rng.standard_normal((n, n)))
-    q = q * np.sign(np.diag(r))
-    return q @ a @ q.T, q @ b, c @ q.T
-
-
 @pytest.mark.parametrize("n, seed", [(50, 5), (100, 5), (50, 0), (100, 1)])
 def test_planted_kalman_structure_is_right_or_refused(n, seed):
     # (identity: sizes known by construction) the default decisions may fail on long weak
@@ -104,7 +83,9 @@ def test_planted_kalman_structure_is_right_or_refused(n, seed):
     cut = np.sort(rng.choice(np.arange(1, n), 3, replace=False))
     sizes = tuple(int(x) for x in np.diff(np.concatenate(([0], cut, [n]))))
     m, p = int(rng.integers(1, 3)), int(rng.integers(1, 3))
-    a, b, c = _planted_kalman(sizes, m, p, rng)
+    a, b, c = planted_kalman(sizes, m, p, rng, separated=False)  # the survey's draws
+    q = orthogonal(n, rng)
+    a, b, c = q @ a @ q.T, q @ b, c @ q.T
     d = np.zeros((p, m))
     try:
         assert sw.kalman_decomposition(a, b, c, d).sizes == sizes
