@@ -69,17 +69,24 @@ def test_the_reported_case_small_b_is_not_uncontrollable():
     assert k.info["zeroed_b"] == 0.0
 
 
-@pytest.mark.parametrize("seed", range(10))
-def test_kalman_and_minimal_sizes_under_scalings_and_rotations(seed):
-    # planted four-part systems (sizes known by construction), hidden by an orthogonal
-    # change of coordinates, then inputs, outputs and states scaled by powers of two
+def _planted_four_parts(seed):
+    """A planted four-part system (sizes known by construction, structure_helpers), hidden
+    by a random orthogonal change of coordinates; the generator for further draws too."""
     rng = np.random.default_rng(500 + seed)
     sizes = tuple(int(x) for x in rng.integers(1, 3, 4))
     m, p = int(rng.integers(1, 3)), int(rng.integers(1, 3))
     n = sum(sizes)
     A0, B0, C0 = planted_kalman(sizes, m, p, rng)
     A, B, C = hide(A0, B0, C0, orthogonal(n, rng))
-    D = np.zeros((p, m))
+    return rng, sizes, (A, B, C, np.zeros((p, m)))
+
+
+@pytest.mark.parametrize("seed", range(10))
+def test_kalman_and_minimal_sizes_under_scalings_and_rotations(seed):
+    # planted four-part systems (sizes known by construction), hidden by an orthogonal
+    # change of coordinates, then inputs, outputs and states scaled by powers of two
+    rng, sizes, (A, B, C, D) = _planted_four_parts(seed)
+    m, p, n = B.shape[1], C.shape[0], A.shape[0]
     ref = sw.kalman_decomposition(A, B, C, D)
     assert ref.sizes == sizes
     assert sw.minimal_realization(A, B, C, D).n_states == sizes[0]
@@ -123,13 +130,8 @@ def test_kalman_under_per_state_scaling(seed):
     # each state scaled by its own power of two (2^-40 .. 2^40): T has orthonormal blocks in
     # the caller's (here badly scaled) coordinates, so the decomposition is right, or
     # refused by its verification; a transfer function that changed is never returned
-    rng = np.random.default_rng(500 + seed)
-    sizes = tuple(int(x) for x in rng.integers(1, 3, 4))
-    m, p = int(rng.integers(1, 3)), int(rng.integers(1, 3))
-    n = sum(sizes)
-    A0, B0, C0 = planted_kalman(sizes, m, p, rng)
-    A, B, C = hide(A0, B0, C0, orthogonal(n, rng))
-    D = np.zeros((p, m))
+    rng, sizes, (A, B, C, D) = _planted_four_parts(seed)
+    m, p, n = B.shape[1], C.shape[0], A.shape[0]
     for _ in range(3):
         eu, ey, ex = rng.integers(-40, 41, m), rng.integers(-40, 41, p), rng.integers(-40, 41, n)
         As, Bs, Cs = scaled(A, B, C, eu, ey, ex)
