@@ -238,3 +238,26 @@ def assert_same_response(model, ref, delta=None, points=None, factor=1e3):
         assert err <= bound, f"response differs at s={s}: {err:.3e} > bound {bound:.3e}"
         worst = max(worst, err / bound if bound else 0.0)
     return worst
+
+
+def scan_indices(a, b):
+    """(sympy reference) The controllability indices in input order: scan b_1..b_m,
+    A b_1..A b_m, ... in this order, keeping a column when it raises the exact rank; mu_j
+    counts the kept columns A^k b_j (in input order)."""
+    import sympy as sp  # only the exact references need it
+
+    A, B = sp.Matrix(a), sp.Matrix(b)
+    n, m = B.shape
+    chosen, mu, blocked = sp.zeros(n, 0), [0] * m, [False] * m
+    power = B
+    for _ in range(n):
+        for j in range(m):
+            if blocked[j] or chosen.shape[1] == n:
+                continue
+            trial = chosen.row_join(power[:, j])
+            if trial.rank() > chosen.shape[1]:
+                chosen, mu[j] = trial, mu[j] + 1
+            else:
+                blocked[j] = True  # (identity) once A^k b_j depends, so do all later powers
+        power = A * power
+    return tuple(mu)

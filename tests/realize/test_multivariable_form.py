@@ -11,26 +11,7 @@ import scipy.signal
 import sympy as sp
 
 import statewright as sw
-
-
-def _scan_indices(a, b):
-    """(sympy reference) Scan b_1..b_m, A b_1..A b_m, ... in this order, keeping a column when
-    it raises the exact rank; mu_j counts the kept columns A^k b_j (in input order)."""
-    A, B = sp.Matrix(a), sp.Matrix(b)
-    n, m = B.shape
-    chosen, mu, blocked = sp.zeros(n, 0), [0] * m, [False] * m
-    power = B
-    for _ in range(n):
-        for j in range(m):
-            if blocked[j] or chosen.shape[1] == n:
-                continue
-            trial = chosen.row_join(power[:, j])
-            if trial.rank() > chosen.shape[1]:
-                chosen, mu[j] = trial, mu[j] + 1
-            else:
-                blocked[j] = True  # (identity) once A^k b_j depends, so do all later powers
-        power = A * power
-    return tuple(mu)
+from structure_helpers import scan_indices
 
 
 def _check_controller_pattern(a, b, indices):
@@ -69,7 +50,7 @@ def _controllable_integer_model(seed, n, m, p, structure="generic"):
     rng = np.random.default_rng(seed)
     for _ in range(100):
         a, b, c, d = _random_integer_model(rng, n, m, p, structure)
-        if sum(_scan_indices(a.tolist(), b.tolist())) == n:
+        if sum(scan_indices(a.tolist(), b.tolist())) == n:
             return a, b, c, d
     raise AssertionError("no controllable model drawn")
 
@@ -121,7 +102,7 @@ def test_indices_and_pattern_exact(seed, structure):
     rng = np.random.default_rng(100 + seed)
     n, m, p = int(rng.integers(2, 7)), int(rng.integers(1, 4)), int(rng.integers(1, 3))
     a, b, c, d = _controllable_integer_model(seed, n, m, p, structure)
-    ref = _scan_indices(a.tolist(), b.tolist())
+    ref = scan_indices(a.tolist(), b.tolist())
     r = sw.multivariable_canonical_form(_fractions(a), _fractions(b), _fractions(c), _fractions(d), exact=True)
     assert r.info["indices"] == ref  # (sympy exact ranks)
     _check_controller_pattern(r.a, r.b, ref)
@@ -136,7 +117,7 @@ def test_indices_and_transfer_matrix_float(seed, structure):
     rng = np.random.default_rng(200 + seed)
     n, m, p = int(rng.integers(2, 7)), int(rng.integers(1, 4)), int(rng.integers(1, 3))
     a, b, c, d = _controllable_integer_model(seed, n, m, p, structure)
-    ref = _scan_indices(a.tolist(), b.tolist())
+    ref = scan_indices(a.tolist(), b.tolist())
     # Dense float coordinates (orthogonal Q): the decisions are made on the staircase.
     q, _ = np.linalg.qr(rng.standard_normal((n, n)))
     af, bf, cf = q.T @ a @ q, q.T @ b, c @ q
@@ -158,7 +139,7 @@ def test_observer_form_is_the_dual(seed):
     n, m, p = int(rng.integers(2, 6)), int(rng.integers(1, 3)), int(rng.integers(1, 4))
     at, ct, bt, dt = _controllable_integer_model(seed, n, p, m)  # (A^T, C^T) controllable
     a, b, c, d = at.T, bt.T, ct.T, dt.T
-    ref = _scan_indices(a.T.tolist(), c.T.tolist())  # (sympy) observability indices
+    ref = scan_indices(a.T.tolist(), c.T.tolist())  # (sympy) observability indices
     exact_model = (_fractions(x) for x in (a, b, c, d))
     r = sw.multivariable_canonical_form(*exact_model, "observer", exact=True)
     assert r.info["indices"] == ref
@@ -271,7 +252,7 @@ def test_nearly_parallel_inputs_are_refused_not_misread():
     returned with indices the data do not have. The exact form gives (3, 1)."""
     a = [[0, 1, 0, 0], [0, 0, 1, 0], [0, 0, 0, 1], [-1, -2, -3, -4]]
     b_exact = [[0, 0], [0, 0], [1, Fraction(101, 100)], [1, 1]]
-    assert _scan_indices(a, b_exact) == (3, 1)
+    assert scan_indices(a, b_exact) == (3, 1)
     r = sw.multivariable_canonical_form(a, b_exact, [[1, 0, 0, 0]], [[0, 0]], exact=True)
     assert r.info["indices"] == (3, 1)
     with pytest.raises(sw.ModelError, match="condition number"):

@@ -3,29 +3,9 @@ ranks of the controllability matrix's column sequence (sympy)."""
 
 import numpy as np
 import pytest
-import sympy as sp
 
 import statewright as sw
-
-
-def _krylov_indices(a, b):
-    """(sympy reference) Select the columns b_1..b_m, A b_1..A b_m, ... left to right when
-    they raise the exact rank; mu_j counts the selected columns A^k b_j. Sorted decreasing."""
-    A, B = sp.Matrix(a), sp.Matrix(b)
-    n, m = B.shape
-    chosen, mu, blocked = sp.zeros(n, 0), [0] * m, [False] * m
-    power = B
-    for _ in range(n):
-        for j in range(m):
-            if blocked[j]:
-                continue
-            trial = chosen.row_join(power[:, j])
-            if trial.rank() > chosen.shape[1]:
-                chosen, mu[j] = trial, mu[j] + 1
-            else:
-                blocked[j] = True  # (identity) once A^k b_j depends, so do all later powers
-        power = A * power
-    return tuple(sorted(mu, reverse=True))
+from structure_helpers import scan_indices
 
 
 def _random_integer_model(rng, n, m, structure):
@@ -46,7 +26,8 @@ def test_indices_match_exact_column_selection(seed, structure):
     n, m = int(rng.integers(2, 7)), int(rng.integers(1, 4))
     a, b = _random_integer_model(rng, n, m, structure)
     st = sw.controllability_staircase(a, b)
-    assert st.controllability_indices() == _krylov_indices(a.astype(int).tolist(), b.astype(int).tolist())
+    exact = scan_indices(a.astype(int).tolist(), b.astype(int).tolist())  # (sympy) in input order
+    assert st.controllability_indices() == tuple(sorted(exact, reverse=True))
     assert sum(st.controllability_indices()) == st.rank
     # (identity) duality: the observability indices of (A^T, B^T)
     ob = sw.observability_staircase(a.T, np.zeros((n, 1)), b.T)
