@@ -36,7 +36,12 @@ pub(crate) fn realize_jordan_float<'py>(
     d.set_item("cluster_spread", spread)?;
     d.set_item("residues", residues)?;
     d.set_item("tol", info.tol)?;
-    d.set_item("condition", info.condition)?;
+    // ∞ for a basis singular in float64 (poles far apart in magnitude): None, as for the
+    // multivariable forms; a float result is finite.
+    d.set_item(
+        "condition",
+        info.condition.is_finite().then_some(info.condition),
+    )?;
     d.set_item("transfer_error", info.transfer_error)?;
     Ok((quad(py, ss, true)?, d))
 }

@@ -76,7 +76,13 @@ pub(crate) fn realize_float<'py>(
     let info = match modal {
         Some(m) => {
             let info = PyDict::new(py);
-            info.set_item("eigenvector_condition", m.eigenvector_condition)?;
+            // ∞ for a basis singular in float64: None (a float result is finite)
+            info.set_item(
+                "eigenvector_condition",
+                m.eigenvector_condition
+                    .is_finite()
+                    .then_some(m.eigenvector_condition),
+            )?;
             info.set_item("condition_limit", m.condition_limit)?;
             info.set_item("pole_separation", m.pole_separation)?;
             info.set_item("separation_limit", m.separation_limit)?;

@@ -140,3 +140,14 @@ def test_bad_tolerances_are_refused():
         sw.realize([1.0], [1.0, 2.0, 1.0], "modal", tol=1e-6)
     with pytest.raises(sw.ModelError, match="tol"):
         sw.realize([1], [1, 2, 1], "jordan", exact=True, tol=1e-6)
+
+
+@pytest.mark.parametrize("form, key", [("jordan", "condition"), ("modal", "eigenvector_condition")])
+def test_condition_of_a_singular_basis_is_none_not_infinite(form, key):
+    # (API contract: a float result is finite) poles 1e60 apart in magnitude make the
+    # basis from the balanced companion form singular in float64; the fuzz run found the
+    # Jordan form reporting inf there. The diagnostic is None instead.
+    r = sw.realize([0.0, 0.0, 0.0, 0.0], [1e-60, 1.0, 1.0, 4.99100856e-84, 0.0], form)
+    assert r.info[key] is None
+    r = sw.realize([1.0, 3.0], [1.0, 3.0, 2.0], form)  # poles -1, -2 (hand): a finite figure
+    assert np.isfinite(r.info[key]) and r.info[key] >= 1.0

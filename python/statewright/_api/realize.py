@@ -80,12 +80,13 @@ def realize(
         (estimated relative error of the poles against the exact roots of the float
         coefficients) and, as a diagnostic only, ``"eigenvector_condition"`` (condition
         number of the transformation from the balanced companion form; large for poles as
-        tame as 1, ..., 10) with ``"condition_limit"`` ``1/(n sqrt(eps))`` for comparison.
+        tame as 1, ..., 10; None when that basis is singular in float64) with ``"condition_limit"`` ``1/(n sqrt(eps))`` for comparison.
         For ``jordan`` in float: ``"poles"`` (one per block, upper member of a pair),
         ``"multiplicities"``, ``"residues"`` (per pole, the coefficients of
         ``1/(s - p)^1 .. 1/(s - p)^m``), ``"cluster_spread"`` (largest relative distance
         of a computed root from its pole), ``"tol"``, ``"condition"`` (of the
-        transformation from the balanced companion form) and ``"transfer_error"`` (the
+        transformation from the balanced companion form; None when that basis is singular
+        in float64) and ``"transfer_error"`` (the
         verification: largest relative deviation of the result's transfer function from
         ``num/den`` at sample points on the imaginary axis). In exact mode: ``"factors"``
         (monic, highest power first), ``"multiplicities"`` and ``"residues"`` (per factor
