@@ -80,7 +80,8 @@ def realize(
         (estimated relative error of the poles against the exact roots of the float
         coefficients) and, as a diagnostic only, ``"eigenvector_condition"`` (condition
         number of the transformation from the balanced companion form; large for poles as
-        tame as 1, ..., 10; None when that basis is singular in float64) with ``"condition_limit"`` ``1/(n sqrt(eps))`` for comparison.
+        tame as 1, ..., 10; None when that basis is singular in float64) with
+        ``"condition_limit"`` ``1/(n sqrt(eps))`` for comparison.
         For ``jordan`` in float: ``"poles"`` (one per block, upper member of a pair),
         ``"multiplicities"``, ``"residues"`` (per pole, the coefficients of
         ``1/(s - p)^1 .. 1/(s - p)^m``), ``"cluster_spread"`` (largest relative distance
