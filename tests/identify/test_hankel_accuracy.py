@@ -158,19 +158,15 @@ def test_truncation_bound_on_a_dense_grid(name, build, discrete, references):
         assert info["balance_residual"] <= 1e-8
 
 
-KNOWN_EXCESS = pytest.mark.xfail(
-    strict=True,
-    reason="known weak: seed 10 (stiff, continuous, order 7): the float64 dense-grid error exceeds "
-    "the bound by 3.6e-4 relative while the routine's own estimate stays below it; not yet "
-    "resolved whether the reference grid evaluation or the reduced model is at fault",
-)
-
-
-@pytest.mark.parametrize("seed", [s if s != 10 else pytest.param(s, marks=KNOWN_EXCESS) for s in range(12)])
+@pytest.mark.parametrize("seed", range(12))
 def test_seeded_survey_bound_never_exceeded(seed):
     # A seeded survey of random stable models (continuous and discrete, some stiff, some
     # lightly damped): the bound of Glover 1984 is never exceeded on a dense grid, and
-    # sigma_1 never exceeds the grid's peak gain (identity of the Hankel norm).
+    # sigma_1 never exceeds the grid's peak gain (identity of the Hankel norm). Where the
+    # float64 grid comes within 1 % of the bound, the points there are evaluated again in
+    # mpmath (the float64 evaluation of a stiff model near a slow pole is off by about
+    # eps cond(sI - A) |G|: seed 10, order 7, read 3.6e-4 above the bound in float64 and
+    # 2.8e-4 below it in mpmath), and the mpmath value is the reference.
     rng = np.random.default_rng(1000 + seed)
     discrete = bool(seed % 2)
     n, m, p = int(rng.integers(3, 13)), int(rng.integers(1, 3)), int(rng.integers(1, 3))
@@ -208,8 +204,18 @@ def test_seeded_survey_bound_never_exceeded(seed):
         except sw.ModelError as exc:
             assert VERIFICATION_REFUSAL in str(exc) or "rounding level" in str(exc)
             continue
-        err = ref.peak(g - ref.response(r.a, r.b, r.c, r.d, freqs, discrete))
-        assert err <= r.info["error_bound"] + r.info["error_allowance"], (order, err, r.info["error_bound"])
+        limit = r.info["error_bound"] + r.info["error_allowance"]
+        float_errors = np.array(
+            [np.linalg.svd(x, compute_uv=False)[0] for x in g - ref.response(r.a, r.b, r.c, r.d, freqs, discrete)]
+        )
+        err = float(float_errors.max())
+        close = freqs[float_errors > 0.99 * limit]
+        if close.size:
+            err = max(
+                float(float_errors[float_errors <= 0.99 * limit].max(initial=0.0)),
+                ref.mp_error_gain((a, b, c, d), (r.a, r.b, r.c, r.d), close, discrete),
+            )
+        assert err <= limit, (order, err, r.info["error_bound"])
 
 
 def test_continuous_refusal_names_discrete_flag():
