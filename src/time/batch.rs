@@ -130,7 +130,9 @@ pub fn frequency_response_batch(
     let results: Vec<Result<Vec<Complex<f64>>>> = (0..count)
         .into_par_iter()
         .map(|i| {
-            let model = HessenbergModel::new(&models.model(i), s.len())?;
+            // Balanced as in the single call, so batch results equal single calls.
+            let (balanced, _) = crate::balance::balance_model(&models.model(i));
+            let model = HessenbergModel::new(&balanced, s.len())?;
             model
                 .evaluate_many(&s, false)
                 .map_err(|(k, f)| failure_error(k, f, frequencies, s[k]))

@@ -546,7 +546,10 @@ pub fn frequency_response(
     sample_time: Option<f64>,
     parallel: bool,
 ) -> Result<Vec<Complex<f64>>> {
-    let model = HessenbergModel::new(ss, frequencies.len())?;
+    // G is the same in every state coordinates; balanced by powers of two (exact), badly
+    // scaled states no longer make sI - A look singular at a frequency far from any pole.
+    let (balanced, _) = crate::balance::balance_model(ss);
+    let model = HessenbergModel::new(&balanced, frequencies.len())?;
     let s = points(frequencies, sample_time)?;
     if s.iter().any(|z| !z.re.is_finite()) {
         return Err(ModelError::BadValue {

@@ -134,3 +134,43 @@ def test_realization_method_uses_its_time_base():
     np.testing.assert_array_equal(
         dm.frequency_response(w), sw.frequency_response(dm.a, dm.b, dm.c, dm.d, w, sample_time=0.05)
     )
+
+
+def mpmath_response(a, b, c, d, s, digits=40):
+    """C (sI - A)^-1 B + D in mpmath (the float data taken exactly)."""
+    import mpmath
+
+    with mpmath.workdps(digits):
+        n = a.shape[0]
+        m = mpmath.matrix([[(s if i == j else 0) - mpmath.mpf(float(a[i, j])) for j in range(n)] for i in range(n)])
+        out = np.zeros((c.shape[0], b.shape[1]), complex)
+        for j in range(b.shape[1]):
+            x = mpmath.lu_solve(m, mpmath.matrix([mpmath.mpf(float(v)) for v in b[:, j]]))
+            for i in range(c.shape[0]):
+                total = mpmath.fsum(mpmath.mpf(float(c[i, k])) * x[k] for k in range(n))
+                out[i, j] = complex(total + mpmath.mpf(float(d[i, j])))
+    return out
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_badly_scaled_states_are_not_a_pole(seed):
+    # States in very different units (D^-1 A D, D = diag(2^e), e over -20..20): ||A|| near
+    # 1e10 while the poles are of order 1. Before the states were balanced, a frequency at
+    # the imaginary part of a pole but far from it was refused as "at a pole". Reference:
+    # mpmath's solve of the given (unbalanced) data; a frequency really at a pole is still
+    # refused (identity: sI - A singular).
+    a0, b, c, d = random_model(40 + seed, 6, 2, 2)
+    ev = np.linalg.eigvals(a0)
+    e = 2.0 ** np.random.default_rng(seed).integers(-20, 21, 6)
+    a, b, c = a0 * e[None, :] / e[:, None], b / e[:, None], c * e[None, :]
+    w = np.concatenate([np.abs(ev.imag[ev.imag > 0]), [0.0, 0.1, 1.0, 10.0]])
+    g = sw.frequency_response(a, b, c, d, w)
+    for k, wk in enumerate(w):
+        ref = mpmath_response(a, b, c, d, 1j * wk)
+        assert np.max(np.abs(g[k] - ref)) <= 1e-12 * np.max(np.abs(ref)), wk
+    batch = sw.frequency_response_batch(a[None], b[None], c[None], d[None], w)
+    np.testing.assert_array_equal(batch[0], g)
+    integrator = a.copy()
+    integrator[:, 0] = 0.0  # a zero column: a pole at s = 0 in any state scaling
+    with pytest.raises(sw.ModelError, match="pole"):
+        sw.frequency_response(integrator, b, c, d, [0.0])

@@ -297,3 +297,63 @@ def test_time_base_survives_transform_pickle_and_display():
     assert np.isclose(back.a[0, 0], np.log(0.5) / 0.25)  # A = log(A_d) / T (identity)
     with pytest.raises(sw.ModelError, match="sample_time"):
         sw.Realization([[1.0]], [[1.0]], [[1.0]], [[0.0]], sample_time=-1.0)
+
+
+def badly_scaled_model(seed, n=6):
+    # States in very different units: D^-1 A D with D = diag(2^e), e over -20..20, so that
+    # ||A|| is about 1e10 while the poles stay of order 1.
+    a, b, c, d = random_model(seed, n=n, m=2, p=2)
+    e = 2.0 ** np.random.default_rng(100 + seed).integers(-20, 21, n)
+    return a * e[None, :] / e[:, None], b / e[:, None], c * e[None, :], d
+
+
+def mpmath_hold(a, b, t, digits=50):
+    # Reference: the block exponential exp([[A, B], [0, 0]] T) (Van Loan 1978) in mpmath.
+    import mpmath
+
+    n, m = b.shape
+    block = np.zeros((n + m, n + m))
+    block[:n, :n], block[:n, n:] = a * t, b * t
+    with mpmath.workdps(digits):
+        e = mpmath.expm(mpmath.matrix(block.tolist()))
+        full = np.array([[float(e[i, j]) for j in range(n + m)] for i in range(n)])
+    return full[:, :n], full[:, n:]
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_zero_order_hold_of_badly_scaled_states_against_mpmath(seed):
+    # Before the states were balanced, exp(A T) of these models came out with relative
+    # errors from 1e-7 up to 1 (the squarings amplified the rounding of a norm 1e10 times
+    # the spectral radius). Reference: mpmath's exponential at 50 digits.
+    a, b, c, d = badly_scaled_model(seed)
+    t = [0.05, 0.3, 1.0, 2.5][seed]
+    r = sw.to_discrete(a, b, c, d, t)
+    ad, bd = mpmath_hold(a, b, t)
+    # Entry by entry against each row and column scale (the entries span 2^±40).
+    scale = np.abs(ad).max(axis=1, keepdims=True) * np.abs(ad).max(axis=0, keepdims=True)
+    assert np.max(np.abs(r.a - ad) / np.sqrt(scale)) <= 1e-12
+    assert max_rel(r.b, bd) <= 1e-12
+    np.testing.assert_array_equal(r.c, c)
+    np.testing.assert_array_equal(r.d, d)
+
+
+@pytest.mark.parametrize("method", ALL_METHODS)
+def test_badly_scaled_states_round_trip_and_match_the_balanced_model(method):
+    # (identity) every method commutes with an exact diagonal similarity: converting the
+    # badly scaled model equals converting the well-scaled one and scaling back, and the
+    # round trip returns the model.
+    a0, b0, c0, d0 = random_model(7, n=5, m=2, p=2, proper=(method == "impulse_invariant"))
+    e = 2.0 ** np.array([-18, 0, 15, -7, 20])
+    a, b, c = a0 * e[None, :] / e[:, None], b0 / e[:, None], c0 * e[None, :]
+    t = 0.4
+    r0 = sw.to_discrete(a0, b0, c0, d0, t, method)
+    r = sw.to_discrete(a, b, c, d0, t, method)
+    back_a = r.a * e[:, None] / e[None, :]
+    assert max_rel(back_a, r0.a) <= 1e-12
+    assert max_rel(r.b * e[:, None], r0.b) <= 1e-12
+    assert max_rel(r.c / e[None, :], r0.c) <= 1e-12
+    assert max_rel(r.d, r0.d) <= 1e-12
+    if method != "impulse_invariant":
+        back = sw.to_continuous(r.a, r.b, r.c, r.d, t, method)
+        assert max_rel(back.a * e[:, None] / e[None, :], a0) <= 1e-9
+        assert max_rel(back.b * e[:, None], b0) <= 1e-9

@@ -108,7 +108,11 @@ def to_discrete(
     is the exponential of one block matrix ``[[A, B], [0, 0]] T`` (Van Loan, IEEE TAC
     1978), so a singular A (integrators) needs no special case. B is balanced against A by
     a power of two first (exact). The rational maps invert ``I - alpha T A`` once
-    (alpha = 1/2, 0, 1).
+    (alpha = 1/2, 0, 1). Every method runs on a copy of the model whose states are
+    balanced by powers of two (Parlett & Reinsch, Numer. Math. 1969; exact, only exponents
+    change) and the result is scaled back to the given state coordinates, so states in
+    very different units (a norm of A far above its spectral radius) do not cost the
+    squarings their accuracy.
 
     Examples
     --------
@@ -180,7 +184,9 @@ def to_continuous(
     exists and is real exactly when no eigenvalue of A_d lies on the closed negative real
     axis; a pole at z = 1 (an integrator) is an ordinary case. A continuous model with
     oscillations above the Nyquist frequency ``pi / T`` comes back aliased (the principal
-    logarithm): the round trip is the identity below it.
+    logarithm): the round trip is the identity below it. As for :func:`to_discrete`, the
+    computation and its verification run in state coordinates balanced by powers of two,
+    and the result is scaled back to the given ones (exact).
 
     Examples
     --------
@@ -231,7 +237,10 @@ def frequency_response(
     Schur form (Francis QR iteration; quasi-triangular, itself a Hessenberg matrix), whose
     Hessenberg solve is a back substitution with the real ``T`` and a 2x2 complex solve per
     complex pair: about a quarter of the arithmetic per frequency. Backward stable either
-    way; the frequencies are spread over threads when the work is large.
+    way; the frequencies are spread over threads when the work is large. The states are
+    first balanced by powers of two (exact; G does not depend on the state coordinates),
+    so badly scaled states neither cost accuracy nor make ``sI - A`` look singular far
+    from a pole.
 
     Examples
     --------
