@@ -12,7 +12,9 @@
 //! 1969). When M is numerically singular (`σ_min(M) ≤ n eps ‖M‖_F`, from its SVD), the
 //! pole at 0 (or 1) may be uncontrollable or unobservable and so absent from G: the model
 //! is replaced by its minimal realization (orthogonal staircases) and M is tested again;
-//! a singular M there is a true pole and the gain is refused. Otherwise `X = M⁻¹ B` is
+//! a minimal realization that removed nothing, or whose M is singular within sqrt(eps)
+//! (the reduction's rounding moves a pole at 0 or 1 by more than n eps), has a true pole
+//! there and the gain is refused. Otherwise `X = M⁻¹ B` is
 //! obtained by an LU solve with partial pivoting (never an explicit inverse) and
 //! `G = D + C X`.
 //!
@@ -62,8 +64,17 @@ pub fn dc_gain(ss: &StateSpace<f64>, discrete: bool) -> Result<(Matrix<f64>, DcG
         ));
     }
     let minimal = minimal_realization(ss, None)?.realization;
-    let (bal, _) = crate::balance::balance_model(&minimal);
-    match try_gain(&bal, discrete)? {
+    // Nothing removed: the pole that made M singular is steered and seen, so G has it.
+    // Something removed: a pole left at 0 (or 1) is perturbed by the reduction's
+    // rounding, so the reduced M is judged singular within sqrt(eps), not n eps (a model
+    // with a pole exactly at 1 came back with a "gain" of 3e15 under the tighter test).
+    let reduced_singular = if minimal.n_states() == ss.n_states() {
+        None
+    } else {
+        let (bal, _) = crate::balance::balance_model(&minimal);
+        try_gain_within(&bal, discrete, REDUCED_SINGULARITY)?
+    };
+    match reduced_singular {
         Some(out) => Ok((
             out.0,
             DcGainInfo {
@@ -87,8 +98,22 @@ pub fn dc_gain(ss: &StateSpace<f64>, discrete: bool) -> Result<(Matrix<f64>, DcG
     }
 }
 
-/// `Some((G, condition, residual))`, or `None` when M is numerically singular.
+/// Relative distance from singularity below which the reduced model's M is singular:
+/// sqrt(eps), for the rounding the reduction adds to a pole at 0 or 1.
+const REDUCED_SINGULARITY: f64 = 1.4901161193847656e-8;
+
+/// `Some((G, condition, residual))`, or `None` when M is numerically singular
+/// (`σ_min(M) ≤ n eps ‖M‖_F`).
 fn try_gain(ss: &StateSpace<f64>, discrete: bool) -> Result<Option<(Matrix<f64>, f64, f64)>> {
+    try_gain_within(ss, discrete, ss.n_states() as f64 * f64::EPSILON)
+}
+
+/// As [`try_gain`], with M singular when `σ_min(M) ≤ relative ‖M‖_F`.
+fn try_gain_within(
+    ss: &StateSpace<f64>,
+    discrete: bool,
+    relative: f64,
+) -> Result<Option<(Matrix<f64>, f64, f64)>> {
     let n = ss.n_states();
     if n == 0 {
         return Ok(Some((ss.d.clone(), 1.0, 0.0)));
@@ -106,7 +131,7 @@ fn try_gain(ss: &StateSpace<f64>, discrete: bool) -> Result<Option<(Matrix<f64>,
     })?;
     let (top, low) = (s[0], s[n - 1]);
     let m_norm = frobenius_norm(&(0..n * n).map(|x| m[(x / n, x % n)]).collect::<Vec<_>>());
-    if low.is_nan() || low <= n as f64 * f64::EPSILON * m_norm {
+    if low.is_nan() || low <= relative * m_norm {
         return Ok(None);
     }
     let b = to_faer(&ss.b);

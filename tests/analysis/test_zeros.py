@@ -344,3 +344,54 @@ def test_realization_zeros_method():
     r = sw.realize([1.0, 3.0, 2.0], [1.0, 6.0, 11.0, 6.0], form="observer")
     assert np.array_equal(r.zeros(), sw.invariant_zeros(*r))
     assert np.allclose(r.zeros(), [-2.0, -1.0], atol=1e-13)
+
+
+def _sympy_gain_at(a, b, c, d, point):
+    """lim_{s -> point} G(s) per entry, exactly (sympy cancel, then the limit); None when an
+    entry is infinite."""
+    s = sympy.symbols("s")
+    rat = lambda x: sympy.Matrix(x.shape[0], x.shape[1], lambda i, j: sympy.Rational(x[i, j]))  # noqa: E731
+    am, bm, cm, dm = rat(a), rat(b), rat(c), rat(d)
+    n = a.shape[0]
+    resolvent = s * sympy.eye(n) - am
+    g = cm * resolvent.adjugate() * bm / resolvent.det() + dm
+    out = np.zeros(g.shape)
+    for i in range(g.rows):
+        for j in range(g.cols):
+            v = sympy.limit(sympy.cancel(g[i, j]), s, point)
+            if not v.is_finite:
+                return None
+            out[i, j] = float(v)
+    return out
+
+
+@pytest.mark.parametrize("discrete", [False, True])
+@pytest.mark.parametrize("seed", range(60))
+def test_dc_gain_at_an_exact_pole_is_refused_or_exact(discrete, seed):
+    # A pole exactly at s = 0 (z = 1): a zero first column of A (of A - I). Reference:
+    # sympy's exact limit of G at that point: infinite -> refused; finite (the pole
+    # cancelled: b's first entry 0 and the first column of A zero below the diagonal
+    # make the state uncontrollable) -> equal. Before the reduced model's test allowed for
+    # the reduction's rounding, 4 of these 120 (seeds 8, 12, 24 discrete, 48 continuous)
+    # came back with a finite "gain" (3e15 on one) where G is infinite.
+    rng = np.random.default_rng(500 + seed)
+    n, m, p = 2 + seed % 3, 1 + seed % 2, 1 + (seed // 6) % 2
+    a = rng.standard_normal((n, n))
+    point = 1 if discrete else 0
+    if discrete:
+        a /= 1.5 * np.max(np.abs(np.linalg.eigvals(a)))
+    a[:, 0] = 0.0
+    a[0, 0] = float(point)
+    b, c, d = rng.standard_normal((n, m)), rng.standard_normal((p, n)), rng.standard_normal((p, m))
+    cancelled = seed % 6 >= 3
+    if cancelled:
+        b[0, :] = 0.0
+        a[0, 1:] = 0.0  # the first state neither steered nor fed by the others
+    ref = _sympy_gain_at(a, b, c, d, point)
+    if ref is None:
+        with pytest.raises(sw.ModelError, match="z = 1" if discrete else "s = 0"):
+            sw.dc_gain(a, b, c, d, discrete=discrete)
+    else:
+        g = sw.dc_gain(a, b, c, d, discrete=discrete)
+        assert np.max(np.abs(g - ref)) <= 1e-10 * max(1.0, np.max(np.abs(ref)))
+    assert (ref is None) != cancelled
