@@ -132,7 +132,10 @@ def dc_gain(a: Any, b: Any, c: Any, d: Any, *, discrete: bool = False) -> np.nda
     Computed by an LU solve (never an explicit inverse) on the model balanced by powers of
     two. When ``A`` (or ``I - A``) is numerically singular (smallest singular value at most
     ``n * eps * ||M||_F``) the minimal realization is tried, since a cancelled pole at 0
-    (or 1) leaves the gain finite.
+    (or 1) leaves the gain finite. When that removes no state, the pole is steered and
+    seen and the gain is refused; when it removes some, its M is judged singular within
+    ``sqrt(eps) * ||M||_F``, because the reduction's rounding moves a pole that stays at
+    0 (or 1) by more than ``n * eps``.
 
     Raises
     ------
