@@ -30,6 +30,7 @@ fn zeros_out<'py>(
     info.set_item("verified", z.info.verified)?;
     info.set_item("refined", z.info.refined)?;
     info.set_item("refinement_move", z.info.refinement_move)?;
+    info.set_item("candidate_tol", z.info.candidate_tol)?;
     let decisions: Vec<(&str, u8, Vec<f64>, usize)> = z
         .info
         .decisions

@@ -58,6 +58,20 @@
 //! against the numerator polynomial in double-double ([`super::refine`]; relative accuracy
 //! for zeros far below `‖A‖`), and the refined zeros are the ones verified. Cost: O((n + m + p)³) for the reduction and QZ.
 //!
+//! Verified candidate search (default tol, non-square models or a normal rank below
+//! min(m, p), where zeros are a non-generic structure): rounding amplified along the
+//! reduction can land a singular value that exact data would make zero above the default
+//! threshold, and the zeros it carries are then missed (29 of 480 planted non-square
+//! models, against an exact Smith–McMillan reference). The kept values between the
+//! threshold and `√eps ‖S‖_F` (at most 4, ascending) are tried as thresholds; a candidate
+//! reduction is accepted when it keeps the normal rank, finds every zero of the current
+//! result and more, and every cluster of q coincident zeros z makes the q smallest
+//! relevant singular values of `P(z)` at most `100 N eps (‖S‖_F + |z| √n)`: each is then a
+//! zero of geometric multiplicity q of a pencil within rounding of the data, which a
+//! spurious zero of the cruder reduction is not (its values sit near the dropped one).
+//! The accepted tol is [`ZerosInfo::candidate_tol`]. Every zero must be checkable within
+//! the work budget, or no candidate is accepted.
+//!
 //! # References
 //! A. Emami-Naeini and P. Van Dooren, "Computation of zeros of linear multivariable
 //! systems", Automatica 18 (1982) 415–430. H. H. Rosenbrock, *State-space and
@@ -123,6 +137,9 @@ pub struct ZerosInfo {
     pub refined: bool,
     /// Largest relative move of a zero by the refinement (0 when not refined).
     pub refinement_move: f64,
+    /// The relative tol of an accepted candidate reduction (see the module's verified
+    /// candidate search); None when the default decisions stand.
+    pub candidate_tol: Option<f64>,
 }
 
 /// Finite zeros (re, im), sorted, and the figures behind them.
@@ -167,29 +184,32 @@ pub fn invariant_zeros(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Zeros> 
     let big_n = (n + bal.n_inputs().max(bal.n_outputs())) as f64;
     let tol_rel = tol.unwrap_or(big_n * big_n * f64::EPSILON);
     let norm = system_norm(&bal);
-    let tol_abs = tol_rel * norm;
     let mut decisions = Vec::new();
-
-    let first = reduce(bal.clone(), tol_abs, 1, &mut decisions)?;
-    let normal_rank = (first.ss.n_states() + first.ss.n_outputs() + first.removed)
-        .checked_sub(n)
-        .ok_or(ModelError::NoConvergence {
-            routine: "the system pencil reduction (normal rank)",
-        })?;
-    let second = reduce(first.ss.dual(), tol_abs, 2, &mut decisions)?;
-    let values = regular_pencil_eigenvalues(&second.ss)?;
-
-    let mut zeros = Vec::with_capacity(values.len());
-    for (re, im) in values {
-        let (re, im) = (re / scale, im / scale);
-        if !(re.is_finite() && im.is_finite()) {
-            return Err(ModelError::Overflow {
-                what: "a zero of the model".into(),
-            });
+    let mut found = pencil_zeros(&bal, scale, tol_rel * norm, &mut decisions)?;
+    let normal_rank = found.normal_rank;
+    let mut candidate_tol = None;
+    let (m, p) = (bal.n_inputs(), bal.n_outputs());
+    if tol.is_none() && (m != p || normal_rank < m.min(p)) {
+        let limit = ROUNDING_LEVEL * big_n * f64::EPSILON;
+        for sigma in candidate_values(&decisions, tol_rel * norm, norm) {
+            let trial_abs = sigma * (1.0 + CANDIDATE_MARGIN);
+            let Ok(trial) = pencil_zeros(&bal, scale, trial_abs, &mut Vec::new()) else {
+                continue;
+            };
+            if trial.normal_rank != normal_rank
+                || trial.zeros.len() <= found.zeros.len()
+                || !contains_all(&trial.zeros, &found.zeros)
+            {
+                continue;
+            }
+            if rounding_level_zeros(&bal, scale, &trial.zeros, normal_rank, norm, limit)? {
+                candidate_tol = Some(trial_abs / norm);
+                found = trial;
+            }
         }
-        zeros.push((re, im));
     }
-    sort_complex(&mut zeros);
+    let found_order = found.regular_order;
+    let mut zeros = found.zeros;
     let refinement = super::refine::refine_siso(ss, &mut zeros);
     if refinement.applied {
         sort_complex(&mut zeros);
@@ -213,13 +233,168 @@ pub fn invariant_zeros(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Zeros> 
             tol: tol_rel,
             norm,
             normal_rank,
-            regular_order: second.ss.n_states(),
+            regular_order: found_order,
             decisions,
             residual,
             verified,
             refined: refinement.applied,
             refinement_move: refinement.largest_move,
+            candidate_tol,
         },
+    })
+}
+
+/// Zeros, normal rank and regular order of one reduction at the absolute tol `tol_abs`.
+struct PencilZeros {
+    zeros: Vec<(f64, f64)>,
+    normal_rank: usize,
+    regular_order: usize,
+}
+
+fn pencil_zeros(
+    bal: &StateSpace<f64>,
+    scale: f64,
+    tol_abs: f64,
+    decisions: &mut Vec<Decision>,
+) -> Result<PencilZeros> {
+    let n = bal.n_states();
+    let first = reduce(bal.clone(), tol_abs, 1, decisions)?;
+    let normal_rank = (first.ss.n_states() + first.ss.n_outputs() + first.removed)
+        .checked_sub(n)
+        .ok_or(ModelError::NoConvergence {
+            routine: "the system pencil reduction (normal rank)",
+        })?;
+    let second = reduce(first.ss.dual(), tol_abs, 2, decisions)?;
+    let values = regular_pencil_eigenvalues(&second.ss)?;
+    let mut zeros = Vec::with_capacity(values.len());
+    for (re, im) in values {
+        let (re, im) = (re / scale, im / scale);
+        if !(re.is_finite() && im.is_finite()) {
+            return Err(ModelError::Overflow {
+                what: "a zero of the model".into(),
+            });
+        }
+        zeros.push((re, im));
+    }
+    sort_complex(&mut zeros);
+    Ok(PencilZeros {
+        zeros,
+        normal_rank,
+        regular_order: second.ss.n_states(),
+    })
+}
+
+/// At most this many candidate reductions are tried.
+const MAX_ZERO_CANDIDATES: usize = 4;
+/// A candidate tol sits this far (relative) above the kept value it drops.
+const CANDIDATE_MARGIN: f64 = 1.0 / 1048576.0;
+/// A candidate's zeros must be zeros of a pencil within `ROUNDING_LEVEL · N · eps` (relative)
+/// of the data.
+const ROUNDING_LEVEL: f64 = 100.0;
+
+/// The kept singular values of the decisions between the default threshold and
+/// `sqrt(eps) · norm`, ascending, at most [`MAX_ZERO_CANDIDATES`]: rounding that the
+/// reduction amplified above the threshold lands there.
+fn candidate_values(decisions: &[Decision], threshold: f64, norm: f64) -> Vec<f64> {
+    let ceiling = f64::EPSILON.sqrt() * norm;
+    let mut values: Vec<f64> = decisions
+        .iter()
+        .flat_map(|d| d.singular_values.iter().copied())
+        .filter(|&s| s > threshold && s <= ceiling)
+        .collect();
+    values.sort_by(f64::total_cmp);
+    values.dedup();
+    values.truncate(MAX_ZERO_CANDIDATES);
+    values
+}
+
+/// Whether every zero of `smaller` has a partner in `larger` (relative distance 1e-6).
+fn contains_all(larger: &[(f64, f64)], smaller: &[(f64, f64)]) -> bool {
+    let mut free = vec![true; larger.len()];
+    smaller.iter().all(|&(re, im)| {
+        let near = |k: usize| {
+            let (a, b) = larger[k];
+            (a - re).hypot(b - im) <= 1e-6 * re.hypot(im).max(1.0)
+        };
+        match (0..larger.len()).find(|&k| free[k] && near(k)) {
+            Some(k) => {
+                free[k] = false;
+                true
+            }
+            None => false,
+        }
+    })
+}
+
+/// The sharp test a candidate's zeros must pass: for each cluster of q coincident zeros at
+/// z (relative distance 1e-6), the q singular values `σ_{n+r−q+1} .. σ_{n+r}` of the
+/// balanced pencil P(z) all at most `limit · (‖S‖_F + |z| √n)`, so z is a zero of
+/// geometric multiplicity q of a pencil within rounding of the data. Every zero is
+/// checked, or the candidate is not accepted (false when beyond the work budget).
+fn rounding_level_zeros(
+    bal: &StateSpace<f64>,
+    scale: f64,
+    zeros: &[(f64, f64)],
+    normal_rank: usize,
+    norm: f64,
+    limit: f64,
+) -> Result<bool> {
+    let (n, m, p) = (bal.n_states(), bal.n_inputs(), bal.n_outputs());
+    let index = n + normal_rank;
+    let (rows, cols) = (n + p, n + m);
+    let per_zero = 8.0 * (rows.max(cols) as f64) * (rows.min(cols) as f64).powi(2) + 1.0;
+    if per_zero * zeros.len() as f64 > VERIFY_BUDGET || norm == 0.0 {
+        return Ok(false);
+    }
+    let mut done = vec![false; zeros.len()];
+    for k in 0..zeros.len() {
+        if done[k] {
+            continue;
+        }
+        let (re, im) = zeros[k];
+        let mut q = 0;
+        for (j, &(a, b)) in zeros.iter().enumerate() {
+            if !done[j] && (a - re).hypot(b - im) <= 1e-6 * re.hypot(im).max(1.0) {
+                done[j] = true;
+                q += 1;
+            }
+        }
+        if q > index {
+            return Ok(false);
+        }
+        let (zr, zi) = (re * scale, im * scale);
+        let s = pencil_singular_values(bal, zr, zi)?;
+        let size = norm + zr.hypot(zi) * (n as f64).sqrt();
+        let worst = s[index - q..index].iter().fold(0.0f64, |w, &v| w.max(v));
+        if worst > limit * size {
+            return Ok(false);
+        }
+    }
+    Ok(true)
+}
+
+/// Singular values (descending) of the balanced pencil `P(z_b)`, z_b in the scaled variable.
+fn pencil_singular_values(bal: &StateSpace<f64>, zr: f64, zi: f64) -> Result<Vec<f64>> {
+    let (n, m, p) = (bal.n_states(), bal.n_inputs(), bal.n_outputs());
+    let (rows, cols) = (n + p, n + m);
+    let pz = Mat::<c64>::from_fn(rows, cols, |i, j| {
+        let v = if i < n && j < n {
+            *bal.a.get(i, j)
+        } else if i < n {
+            *bal.b.get(i, j - n)
+        } else if j < n {
+            *bal.c.get(i - n, j)
+        } else {
+            *bal.d.get(i - n, j - n)
+        };
+        if i == j && i < n {
+            c64::new(v - zr, -zi)
+        } else {
+            c64::new(v, 0.0)
+        }
+    });
+    pz.singular_values().map_err(|_| ModelError::NoConvergence {
+        routine: "the SVD verifying a zero",
     })
 }
 
@@ -602,27 +777,7 @@ fn verify(
     for &k in &picks {
         // The balanced pencil works in the scaled variable: z_b = k z.
         let (zr, zi) = (zeros[k].0 * scale, zeros[k].1 * scale);
-        let pz = Mat::<c64>::from_fn(rows, cols, |i, j| {
-            let v = if i < n && j < n {
-                *bal.a.get(i, j)
-            } else if i < n {
-                *bal.b.get(i, j - n)
-            } else if j < n {
-                *bal.c.get(i - n, j)
-            } else {
-                *bal.d.get(i - n, j - n)
-            };
-            if i == j && i < n {
-                c64::new(v - zr, -zi)
-            } else {
-                c64::new(v, 0.0)
-            }
-        });
-        let s = pz
-            .singular_values()
-            .map_err(|_| ModelError::NoConvergence {
-                routine: "the SVD verifying a zero",
-            })?;
+        let s = pencil_singular_values(bal, zr, zi)?;
         let sigma = s.get(index - 1).copied().unwrap_or(0.0);
         let size = norm + zr.hypot(zi) * (n as f64).sqrt();
         worst = worst.max(sigma / size);
