@@ -22,7 +22,8 @@
 //! invariant, [`Tolerance::Relative`]): the first step against `n² eps ‖B̂‖_F` (B with its
 //! columns scaled by powers of two to one exponent), later steps against `n² eps ‖A‖_F`;
 //! then a verified search for rounding-level values amplified along the chain (candidate
-//! factors up to `sqrt(eps)`, and an eigenvector-guided split by the PBH eigenvector test),
+//! factors up to `sqrt(eps)`, and an eigenvector-guided split by the PBH eigenvector test,
+//! refined to a split at rounding distance from the data: [`super::refine`]),
 //! a smaller controllable part being accepted only when it reproduces the Krylov sequence
 //! `A^k B`, `k < 2n`, to `200 n² eps` (a check of a candidate split, not a rank decision
 //! from the controllability matrix). Every step records its threshold and backward error,
@@ -319,8 +320,12 @@ const PBH_CANDIDATE: f64 = 1e-8;
 /// Eigenvector-guided split (PBH test): when the staircase reached more states than a
 /// left-eigenvector count says are controllable, the left eigenvectors `v` of the modes
 /// with `|vᵀ B̂| <= 1e-8 ‖v‖ ‖B̂‖_F` span a candidate left-invariant subspace `Q_2` with
-/// `Q_2ᵀ B ≈ 0`; the split `[Q_1, Q_2]` is accepted only when it reproduces the Krylov
-/// sequence (as in [`verified_search`]). The controllable part then gets its own
+/// `Q_2ᵀ B ≈ 0`. That basis is only as good as the eigenvectors' conditioning, so the
+/// split is refined ([`super::refine`]): Newton steps on its Sylvester equation bring the
+/// coupling `Q_2ᵀ A Q_1` to rounding level, then a joint correction moves it towards a
+/// nearby model whose split also holds B (kept only when the larger of the two relative
+/// residuals, coupling and `‖Q_2ᵀ B̂‖ / ‖B̂‖`, goes down). The split `[Q_1, Q_2]` is
+/// accepted only when it reproduces the Krylov sequence (as in [`verified_search`]). The controllable part then gets its own
 /// staircase; the split is recorded as a final step whose value is `‖Q_2ᵀ A Q_1‖_F`.
 /// Only tried when some kept step value is below `1e-2` relative (a long, weak chain).
 pub(crate) fn eigenvector_split(
@@ -395,9 +400,40 @@ pub(crate) fn eigenvector_split(
         return Ok(None);
     }
     let uu = super::from_faer(svd.U());
-    let q2 = super::columns(&uu, 0, ku);
-    let q1 = super::columns(&uu, ku, n);
     let nc = n - ku;
+    // Q = [Q_1, Q_2]: the complement first, then the eigenvector span; refined to an
+    // invariant split (coupling of rounding level) when the eigenvector basis was not
+    // well conditioned.
+    let q0 = super::hstack(
+        &[&super::columns(&uu, ku, n), &super::columns(&uu, 0, ku)],
+        n,
+    );
+    let q0 =
+        match super::refine::refine_invariant_split(&super::to_faer(a), &super::to_faer(&q0), nc) {
+            Some(r) => super::from_faer(r.q.as_ref()),
+            None => q0,
+        };
+    // then the joint correction towards a split that also holds B (kept when it lowers
+    // the larger of the two relative residuals)
+    let q0 = {
+        let (af, bf) = (super::to_faer(a), super::to_faer(&b_hat));
+        let qf = super::to_faer(&q0);
+        let measure = |q: &faer::Mat<f64>| {
+            let q1 = q.subcols(0, nc);
+            let q2 = q.subcols(nc, n - nc);
+            let e = (q2.transpose() * &af * q1).norm_l2() / af.norm_l2();
+            let r = (q2.transpose() * &bf).norm_l2() / bf.norm_l2();
+            (e, r)
+        };
+        let worse = |(e, r): (f64, f64)| e.max(r);
+        let m0 = measure(&qf);
+        match super::refine::joint_correction(&af, &bf, &qf, nc) {
+            Some(qj) if worse(measure(&qj)) < worse(m0) => super::from_faer(qj.as_ref()),
+            _ => q0,
+        }
+    };
+    let q1 = super::columns(&q0, 0, nc);
+    let q2 = super::columns(&q0, nc, n);
     // the controllable part and its own staircase, thresholds from the whole pair
     let a11 = q1.transpose().matmul(a).matmul(&q1);
     let b1 = q1.transpose().matmul(b);
