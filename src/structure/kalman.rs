@@ -114,6 +114,10 @@ fn complement(w: &Matrix<f64>) -> Result<Matrix<f64>> {
 }
 
 pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<KalmanDecomposition> {
+    super::staircase::with_eigen_cache(|| kalman_decomposition_in(ss, tol))
+}
+
+fn kalman_decomposition_in(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<KalmanDecomposition> {
     check_model(ss)?;
     check_tol(tol)?;
     let n = ss.n_states();

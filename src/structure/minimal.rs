@@ -178,6 +178,10 @@ fn within_the_ranks(bal: &StateSpace<f64>, m: Minimal, shared: &mut Shared) -> R
 }
 
 pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Minimal> {
+    super::staircase::with_eigen_cache(|| minimal_realization_in(ss, tol))
+}
+
+fn minimal_realization_in(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Minimal> {
     check_model(ss)?;
     check_tol(tol)?;
     // Decide and reduce on the balanced model: its rounding errors are the smallest.

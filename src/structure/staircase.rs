@@ -247,12 +247,12 @@ pub fn controllability_staircase(
     check_tol(tol)?;
     match tol {
         Some(t) => staircase_with(a, b, c, Tolerance::Absolute(t), None),
-        None => {
+        None => with_eigen_cache(|| {
             let f0 = default_factor(a.rows());
             let st0 = staircase_with(a, b, c, Tolerance::Relative(f0), None)?;
             let st = verified_search(a, b, c, st0, f0);
             Ok(eigenvector_split(a, b, c, f0, &st)?.unwrap_or(st))
-        }
+        }),
     }
 }
 
@@ -351,11 +351,10 @@ pub(crate) fn eigenvector_split(
     }
     let e = column_exponents(b);
     let b_hat = scale_columns(b, &e, 1);
-    let at = super::to_faer(&a.transpose());
-    let Ok(eig) = at.eigen() else {
+    let Some(eig) = eigen_of_transpose(a) else {
         return Ok(None);
     };
-    let (u, values) = (eig.U(), eig.S().column_vector());
+    let (u, values) = (eig.0.as_ref(), &eig.1);
     let nb = frobenius(&b_hat);
     let bh = super::to_faer(&b_hat);
     let mut cols: Vec<Vec<f64>> = Vec::new();
@@ -513,6 +512,82 @@ pub(crate) fn eigenvector_split(
     };
     out.split_residual = split_residual(a, &b_hat, &out);
     Ok(Some(out))
+}
+
+/// An eigendecomposition of `Aᵀ` (right eigenvectors as columns, eigenvalues).
+type Eigen = std::rc::Rc<(Mat<faer::c64>, Vec<faer::c64>)>;
+
+/// The cache: the depth of nested [`with_eigen_cache`] calls and the (matrix, result) pairs.
+type EigenCache = (usize, Vec<(Matrix<f64>, Eigen)>);
+
+/// At most this many eigendecompositions are kept within one call.
+const EIGEN_CACHE_SIZE: usize = 4;
+
+thread_local! {
+    /// Eigendecompositions computed within the current top-level call ([`with_eigen_cache`]),
+    /// keyed by the exact bits of the matrix: the candidate search, the rank guards and the
+    /// Kalman decomposition's passes meet the same A (or Aᵀ) several times, and an
+    /// eigendecomposition is a pure function of its input, so a repeat is looked up
+    /// instead of recomputed (no decision changes).
+    static EIGEN_CACHE: std::cell::RefCell<EigenCache> =
+        const { std::cell::RefCell::new((0, Vec::new())) };
+}
+
+/// Runs `f` with the eigendecomposition cache active (nested calls share it); the cache is
+/// emptied when the outermost call returns.
+pub(crate) fn with_eigen_cache<R>(f: impl FnOnce() -> R) -> R {
+    struct Scope;
+    impl Drop for Scope {
+        fn drop(&mut self) {
+            EIGEN_CACHE.with(|c| {
+                let mut c = c.borrow_mut();
+                c.0 -= 1;
+                if c.0 == 0 {
+                    c.1.clear();
+                }
+            });
+        }
+    }
+    EIGEN_CACHE.with(|c| c.borrow_mut().0 += 1);
+    let _scope = Scope;
+    f()
+}
+
+/// The eigendecomposition of `aᵀ` (faer), looked up in the cache of the current call when
+/// one is active; `None` when it fails.
+fn eigen_of_transpose(a: &Matrix<f64>) -> Option<Eigen> {
+    let active = EIGEN_CACHE.with(|c| {
+        let c = c.borrow();
+        if c.0 == 0 {
+            return None;
+        }
+        let same = |m: &Matrix<f64>| {
+            m.rows() == a.rows()
+                && m.as_slice()
+                    .iter()
+                    .zip(a.as_slice())
+                    .all(|(x, y)| x.to_bits() == y.to_bits())
+        };
+        Some(c.1.iter().find(|(m, _)| same(m)).map(|(_, e)| e.clone()))
+    });
+    if let Some(Some(hit)) = active {
+        return Some(hit);
+    }
+    let eig = super::to_faer(&a.transpose()).eigen().ok()?;
+    let out: Eigen = std::rc::Rc::new((
+        eig.U().to_owned(),
+        (0..a.rows()).map(|i| eig.S().column_vector()[i]).collect(),
+    ));
+    if active.is_some() {
+        EIGEN_CACHE.with(|c| {
+            let mut c = c.borrow_mut();
+            if c.1.len() == EIGEN_CACHE_SIZE {
+                c.1.remove(0);
+            }
+            c.1.push((a.clone(), out.clone()));
+        });
+    }
+    Some(out)
 }
 
 fn leading_block(m: &Matrix<f64>, rows: usize, cols: usize) -> Matrix<f64> {
