@@ -936,6 +936,29 @@ mod tests {
     }
 
     #[test]
+    fn the_eigendecomposition_cache_returns_what_a_fresh_computation_does() {
+        // (identity) an eigendecomposition is a pure function of its input: within one call
+        // a repeat is the cached result, bit for bit the fresh one; outside a call nothing
+        // is kept.
+        let a = m(3, 3, &[1.0, 2.0, 0.0, -1.0, 0.5, 3.0, 0.0, 0.25, -2.0]);
+        let fresh = eigen_of_transpose(&a).unwrap();
+        let (first, second) = with_eigen_cache(|| {
+            (
+                eigen_of_transpose(&a).unwrap(),
+                eigen_of_transpose(&a).unwrap(),
+            )
+        });
+        assert!(std::rc::Rc::ptr_eq(&first, &second));
+        assert_eq!(fresh.1, first.1);
+        for j in 0..3 {
+            for i in 0..3 {
+                assert_eq!(fresh.0[(i, j)], first.0[(i, j)]);
+            }
+        }
+        EIGEN_CACHE.with(|c| assert!(c.borrow().0 == 0 && c.borrow().1.is_empty()));
+    }
+
+    #[test]
     fn an_unrepresentable_result_is_refused_not_infinite() {
         // B = [MAX, MAX]ᵀ: the first step's singular value is √2 · MAX, beyond the range.
         let a = Matrix::zeros(2, 2);
