@@ -22,6 +22,9 @@
    block Hankel matrix of the Markov parameters computed exactly in sympy.
 
 Usage: python scripts/structure_survey.py [--quick]
+       python scripts/structure_survey.py --kalman-only FIRST_SEED SEEDS
+           (the planted Kalman survey alone, n = 20, 50, 100, 200, with seeds
+           FIRST_SEED .. FIRST_SEED + SEEDS - 1: draws beyond the full run's)
 """
 
 import sys
@@ -151,12 +154,12 @@ def planted_kalman(sizes, m, p, rng):
     return q @ A @ q.T, q @ B, C @ q.T
 
 
-def survey_kalman(sizes_list, seeds):
+def survey_kalman(sizes_list, seeds, first_seed=0):
     print("Planted Kalman structure (random orthogonal coordinates): sizes recovered")
     hits = count = refused = 0
     wrong = []
     for n in sizes_list:
-        for seed in range(seeds):
+        for seed in range(first_seed, first_seed + seeds):
             rng = np.random.default_rng(50_000 + 31 * n + seed)
             cut = np.sort(rng.choice(np.arange(1, n), 3, replace=False))
             sizes = tuple(int(x) for x in np.diff(np.concatenate(([0], cut, [n]))))
@@ -229,6 +232,11 @@ def survey_transfer_matrix(cases):
 if __name__ == "__main__":
     quick = "--quick" in sys.argv
     t0 = time.perf_counter()
+    if "--kalman-only" in sys.argv:
+        at = sys.argv.index("--kalman-only")
+        survey_kalman((20, 50, 100, 200), int(sys.argv[at + 2]), first_seed=int(sys.argv[at + 1]))
+        print(f"({time.perf_counter() - t0:.0f} s)")
+        sys.exit(0)
     survey_planted((20, 50) if quick else (20, 50, 100, 200, 300), 3 if quick else 10)
     survey_siso(50 if quick else 300)
     survey_kalman((20, 50) if quick else (20, 50, 100, 200, 300), 3 if quick else 10)

@@ -42,7 +42,11 @@
 //! (tol 0); if none passes the call is refused with `Unverified`, and so is a result whose
 //! minimal part keeps more states than the verified minimal realization of the same model,
 //! or whose controllable or observable dimension differs from the default staircase of the
-//! whole model (its sizes would be wrong although its response is right). With an explicit tol the
+//! whole model (its sizes would be wrong although its response is right). The default
+//! minimal realization of the same balanced model is computed once: its two passes at `n² eps`
+//! are the decomposition's first two there, and its rank guard (the default observability
+//! staircase of the whole model) is the observable dimension checked here, so neither is
+//! recomputed. With an explicit tol the
 //! result is refused when more than half of B or of C (in Frobenius norm) would be set to
 //! zero or the minimal part's Markov residual exceeds 1/2: B is never zeroed silently.
 //!
@@ -55,7 +59,7 @@ use super::minimal::check_model;
 use super::minimal::{candidate_factors, MAX_TRIES};
 use super::staircase::{
     check_tol, default_factor, frobenius, leading_part, observability_with, staircase_with,
-    Tolerance,
+    Staircase, Tolerance,
 };
 use super::verify::{markov_residual, markov_tolerance};
 use super::{columns, condition_number, from_faer, hstack, to_faer};
@@ -110,6 +114,10 @@ fn complement(w: &Matrix<f64>) -> Result<Matrix<f64>> {
 }
 
 pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<KalmanDecomposition> {
+    super::staircase::with_eigen_cache(|| kalman_decomposition_in(ss, tol))
+}
+
+fn kalman_decomposition_in(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<KalmanDecomposition> {
     check_model(ss)?;
     check_tol(tol)?;
     let n = ss.n_states();
@@ -118,7 +126,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
     // coordinates.
     let (bal, scale) = balance_model(ss);
     if let Some(x) = tol {
-        let k = decompose(ss, &bal, &scale, Tolerance::Absolute(x))?;
+        let k = decompose(ss, &bal, &scale, Tolerance::Absolute(x), None)?;
         if k.zeroed_b > 0.5 || k.zeroed_c > 0.5 || k.markov_residual > 0.5 {
             return Err(ModelError::Unverified {
                 what: "the Kalman decomposition",
@@ -138,7 +146,17 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
         k.markov_residual <= vt
             && k.pattern_residual <= 100.0 * n as f64 * f64::EPSILON * k.condition.max(1.0)
     };
-    let k0 = decompose(ss, &bal, &scale, Tolerance::Relative(f0))?;
+    // The default minimal realization works on the same balanced model: its passes at the
+    // default factor are the first two of the default decomposition, and its rank guard is
+    // the observability staircase the consistency check below needs.
+    let (minimal, mut shared) = super::minimal::minimal_default(&bal);
+    let k0 = decompose(
+        ss,
+        &bal,
+        &scale,
+        Tolerance::Relative(f0),
+        shared.at_default.take(),
+    )?;
     let (p0, m0, c0) = (k0.pattern_residual, k0.markov_residual, k0.condition);
     let mut frontier = {
         let [a, b, c] = &k0.staircases;
@@ -148,7 +166,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
     // the observable part together; try it first (three separate passes at a factor
     // between two rounding-level values can disagree).
     let mut minimal_order = None;
-    if let Ok(m) = super::minimal::minimal_realization(ss, None) {
+    if let Ok(m) = minimal {
         minimal_order = Some(m.realization.n_states());
         if m.factor > f0 {
             frontier.insert(0, m.factor);
@@ -162,9 +180,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
     let controllable = super::staircase::controllability_staircase(&bal.a, &bal.b, None, None)
         .map(|s| s.rank)
         .ok();
-    let observable = super::staircase::observability_staircase(&bal.a, None, &bal.c, None)
-        .map(|s| s.rank)
-        .ok();
+    let observable = shared.observable_rank(&bal);
     let consistent = |k: KalmanDecomposition| -> Result<KalmanDecomposition> {
         let [co, cu, uo, _] = k.sizes;
         let mismatch = match (minimal_order, controllable, observable) {
@@ -199,7 +215,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
     while !frontier.is_empty() && tries < MAX_TRIES {
         let f = frontier.remove(0);
         tries += 1;
-        if let Ok(k) = decompose(ss, &bal, &scale, Tolerance::Relative(f)) {
+        if let Ok(k) = decompose(ss, &bal, &scale, Tolerance::Relative(f), None) {
             if passes(&k) {
                 let [a, b, c] = &k.staircases;
                 frontier = candidate_factors(&[a, b, c], f);
@@ -214,7 +230,7 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
     }
     // The default result fails the check: keep every state that is not decided by an
     // exact zero, if that passes.
-    if let Ok(keep) = decompose(ss, &bal, &scale, Tolerance::Relative(0.0)) {
+    if let Ok(keep) = decompose(ss, &bal, &scale, Tolerance::Relative(0.0), None) {
         if passes(&keep) {
             return consistent(keep);
         }
@@ -233,12 +249,15 @@ pub fn kalman_decomposition(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Ka
 }
 
 /// One decomposition with the decisions judged by `t` (on the balanced model `bal`, whose
-/// diagonal similarity is `scale`).
+/// diagonal similarity is `scale`). `reuse`: the controllability staircase and the
+/// observability staircase of its controllable part at `t`, when already computed (by the
+/// default minimal realization of `bal`, with the same calls).
 fn decompose(
     ss: &StateSpace<f64>,
     bal: &StateSpace<f64>,
     scale: &[f64],
     t: Tolerance,
+    reuse: Option<(Staircase, Staircase)>,
 ) -> Result<KalmanDecomposition> {
     let n = ss.n_states();
     let factor = match t {
@@ -249,13 +268,19 @@ fn decompose(
         Tolerance::Absolute(x) => format!("tol={x:.3e}"),
         Tolerance::Relative(f) => format!("the default tol (relative factor {f:.3e})"),
     };
-    let sc = staircase_with(&bal.a, &bal.b, Some(&bal.c), t, None)?;
-    // the eigenvector-guided split of the default (PBH test, verified; see the staircase)
-    let sc = super::staircase::with_eigenvector_split(&bal.a, &bal.b, Some(&bal.c), t, sc)?;
+    let (sc, so) = match reuse {
+        Some(pair) => pair,
+        None => {
+            let sc = staircase_with(&bal.a, &bal.b, Some(&bal.c), t, None)?;
+            // the eigenvector-guided split of the default (PBH test, verified; see the staircase)
+            let sc = super::staircase::with_eigenvector_split(&bal.a, &bal.b, Some(&bal.c), t, sc)?;
+            let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), sc.rank);
+            let so = observability_with(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
+            (sc, so)
+        }
+    };
     let nc = sc.rank;
     let r_basis = columns(&sc.q, 0, nc);
-    let (a1, b1, c1) = leading_part(&sc.a, &sc.b, sc.c.as_ref().expect("carried"), nc);
-    let so = observability_with(&a1, Some(&b1), &c1, t, Some((&bal.a, &bal.c)))?;
     let k1 = so.rank;
     let x2_balanced = r_basis.matmul(&columns(&so.q, so.rank, nc));
 

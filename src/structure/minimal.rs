@@ -133,20 +133,43 @@ fn passes(bal: &StateSpace<f64>, t: Tolerance) -> Result<Minimal> {
     })
 }
 
+/// What the default minimal realization computed on the balanced model that the Kalman
+/// decomposition of the same model needs as well (the same balancing, the same calls): passed
+/// down instead of recomputed.
+#[derive(Default)]
+pub(crate) struct Shared {
+    /// The controllability staircase and the observability staircase of its controllable
+    /// part at the default factor `n² eps` (what [`passes`] computed there).
+    pub at_default: Option<(Staircase, Staircase)>,
+    /// The rank of the default observability staircase of the whole balanced model (the
+    /// guard of [`within_the_ranks`]): `None` when not computed, `Some(None)` when it failed.
+    pub observable: Option<Option<usize>>,
+}
+
+impl Shared {
+    /// The default observability rank of the whole balanced model, computed once.
+    pub fn observable_rank(&mut self, bal: &StateSpace<f64>) -> Option<usize> {
+        *self.observable.get_or_insert_with(|| {
+            super::staircase::observability_staircase(&bal.a, None, &bal.c, None)
+                .map(|o| o.rank)
+                .ok()
+        })
+    }
+}
+
 /// The default result must not keep more states than the default observability staircase
 /// of the whole (balanced) model finds observable: the reduction of the controllable part can miss
 /// unobservable states there, and the Markov check cannot see kept states.
-fn within_the_ranks(bal: &StateSpace<f64>, m: Minimal) -> Result<Minimal> {
+fn within_the_ranks(bal: &StateSpace<f64>, m: Minimal, shared: &mut Shared) -> Result<Minimal> {
     let order = m.realization.n_states();
-    if let Ok(o) = super::staircase::observability_staircase(&bal.a, None, &bal.c, None) {
-        if order > o.rank {
+    if let Some(rank) = shared.observable_rank(bal) {
+        if order > rank {
             return Err(ModelError::Unverified {
                 what: "the minimal realization",
                 detail: format!(
                     "the reduction kept {order} states where the observability staircase of the \
-                     whole model finds only {} observable: the default decisions on the \
-                     controllable part missed unobservable states; pass an explicit tol",
-                    o.rank
+                     whole model finds only {rank} observable: the default decisions on the \
+                     controllable part missed unobservable states; pass an explicit tol"
                 ),
             });
         }
@@ -155,6 +178,10 @@ fn within_the_ranks(bal: &StateSpace<f64>, m: Minimal) -> Result<Minimal> {
 }
 
 pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Minimal> {
+    super::staircase::with_eigen_cache(|| minimal_realization_in(ss, tol))
+}
+
+fn minimal_realization_in(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Minimal> {
     check_model(ss)?;
     check_tol(tol)?;
     // Decide and reduce on the balanced model: its rounding errors are the smallest.
@@ -182,8 +209,23 @@ pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Min
         }
         return Ok(m);
     }
+    minimal_default(&bal).0
+}
+
+/// The default (scale-invariant, verified) minimal realization of the balanced model `bal`,
+/// and what it computed that the Kalman decomposition of the same model reuses.
+pub(crate) fn minimal_default(bal: &StateSpace<f64>) -> (Result<Minimal>, Shared) {
+    let mut shared = Shared::default();
+    let result = minimal_default_with(bal, &mut shared);
+    (result, shared)
+}
+
+fn minimal_default_with(bal: &StateSpace<f64>, shared: &mut Shared) -> Result<Minimal> {
+    let n = bal.n_states();
+    let vt = markov_tolerance(n);
     let f0 = default_factor(n);
-    let m0 = passes(&bal, Tolerance::Relative(f0))?;
+    let m0 = passes(bal, Tolerance::Relative(f0))?;
+    shared.at_default = Some((m0.controllability.clone(), m0.observability.clone()));
     // Search: each passing candidate gives the next candidates (its own kept singular
     // values above its factor); the smallest passing model found is returned.
     let mut frontier = candidate_factors(&[&m0.controllability, &m0.observability], f0);
@@ -193,7 +235,7 @@ pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Min
     while !frontier.is_empty() && tries < MAX_TRIES {
         let f = frontier.remove(0);
         tries += 1;
-        let m = passes(&bal, Tolerance::Relative(f))?;
+        let m = passes(bal, Tolerance::Relative(f))?;
         if m.markov_residual <= vt {
             frontier = candidate_factors(&[&m.controllability, &m.observability], f);
             if best
@@ -205,11 +247,11 @@ pub fn minimal_realization(ss: &StateSpace<f64>, tol: Option<f64>) -> Result<Min
         }
     }
     if let Some(b) = best {
-        return within_the_ranks(&bal, b);
+        return within_the_ranks(bal, b, shared);
     }
-    let keep = passes(&bal, Tolerance::Relative(0.0))?;
+    let keep = passes(bal, Tolerance::Relative(0.0))?;
     if keep.markov_residual <= vt {
-        return within_the_ranks(&bal, keep);
+        return within_the_ranks(bal, keep, shared);
     }
     Err(ModelError::Unverified {
         what: "the minimal realization",

@@ -6,11 +6,13 @@
 //! | Kalman decomposition | [`kalman`] |
 //! | minimal realization | [`minimal`] |
 //! | similarity transformation between two minimal realizations | [`similarity`] |
+//! | refinement of an eigenvector-guided split to an invariant subspace | [`refine`] |
 //! | Markov-parameter check of a reduced model | [`verify`] |
 
 pub mod householder;
 pub mod kalman;
 pub mod minimal;
+pub mod refine;
 pub mod similarity;
 pub mod staircase;
 pub mod verify;

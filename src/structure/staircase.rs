@@ -22,7 +22,8 @@
 //! invariant, [`Tolerance::Relative`]): the first step against `n² eps ‖B̂‖_F` (B with its
 //! columns scaled by powers of two to one exponent), later steps against `n² eps ‖A‖_F`;
 //! then a verified search for rounding-level values amplified along the chain (candidate
-//! factors up to `sqrt(eps)`, and an eigenvector-guided split by the PBH eigenvector test),
+//! factors up to `sqrt(eps)`, and an eigenvector-guided split by the PBH eigenvector test,
+//! refined to a split at rounding distance from the data: [`super::refine`]),
 //! a smaller controllable part being accepted only when it reproduces the Krylov sequence
 //! `A^k B`, `k < 2n`, to `200 n² eps` (a check of a candidate split, not a rank decision
 //! from the controllability matrix). Every step records its threshold and backward error,
@@ -246,12 +247,12 @@ pub fn controllability_staircase(
     check_tol(tol)?;
     match tol {
         Some(t) => staircase_with(a, b, c, Tolerance::Absolute(t), None),
-        None => {
+        None => with_eigen_cache(|| {
             let f0 = default_factor(a.rows());
             let st0 = staircase_with(a, b, c, Tolerance::Relative(f0), None)?;
             let st = verified_search(a, b, c, st0, f0);
             Ok(eigenvector_split(a, b, c, f0, &st)?.unwrap_or(st))
-        }
+        }),
     }
 }
 
@@ -319,8 +320,12 @@ const PBH_CANDIDATE: f64 = 1e-8;
 /// Eigenvector-guided split (PBH test): when the staircase reached more states than a
 /// left-eigenvector count says are controllable, the left eigenvectors `v` of the modes
 /// with `|vᵀ B̂| <= 1e-8 ‖v‖ ‖B̂‖_F` span a candidate left-invariant subspace `Q_2` with
-/// `Q_2ᵀ B ≈ 0`; the split `[Q_1, Q_2]` is accepted only when it reproduces the Krylov
-/// sequence (as in [`verified_search`]). The controllable part then gets its own
+/// `Q_2ᵀ B ≈ 0`. That basis is only as good as the eigenvectors' conditioning, so the
+/// split is refined ([`super::refine`]): Newton steps on its Sylvester equation bring the
+/// coupling `Q_2ᵀ A Q_1` to rounding level, then a joint correction moves it towards a
+/// nearby model whose split also holds B (kept only when the larger of the two relative
+/// residuals, coupling and `‖Q_2ᵀ B̂‖ / ‖B̂‖`, goes down). The split `[Q_1, Q_2]` is
+/// accepted only when it reproduces the Krylov sequence (as in [`verified_search`]). The controllable part then gets its own
 /// staircase; the split is recorded as a final step whose value is `‖Q_2ᵀ A Q_1‖_F`.
 /// Only tried when some kept step value is below `1e-2` relative (a long, weak chain).
 pub(crate) fn eigenvector_split(
@@ -346,11 +351,10 @@ pub(crate) fn eigenvector_split(
     }
     let e = column_exponents(b);
     let b_hat = scale_columns(b, &e, 1);
-    let at = super::to_faer(&a.transpose());
-    let Ok(eig) = at.eigen() else {
+    let Some(eig) = eigen_of_transpose(a) else {
         return Ok(None);
     };
-    let (u, values) = (eig.U(), eig.S().column_vector());
+    let (u, values) = (eig.0.as_ref(), &eig.1);
     let nb = frobenius(&b_hat);
     let bh = super::to_faer(&b_hat);
     let mut cols: Vec<Vec<f64>> = Vec::new();
@@ -395,9 +399,40 @@ pub(crate) fn eigenvector_split(
         return Ok(None);
     }
     let uu = super::from_faer(svd.U());
-    let q2 = super::columns(&uu, 0, ku);
-    let q1 = super::columns(&uu, ku, n);
     let nc = n - ku;
+    // Q = [Q_1, Q_2]: the complement first, then the eigenvector span; refined to an
+    // invariant split (coupling of rounding level) when the eigenvector basis was not
+    // well conditioned.
+    let q0 = super::hstack(
+        &[&super::columns(&uu, ku, n), &super::columns(&uu, 0, ku)],
+        n,
+    );
+    let q0 =
+        match super::refine::refine_invariant_split(&super::to_faer(a), &super::to_faer(&q0), nc) {
+            Some(r) => super::from_faer(r.q.as_ref()),
+            None => q0,
+        };
+    // then the joint correction towards a split that also holds B (kept when it lowers
+    // the larger of the two relative residuals)
+    let q0 = {
+        let (af, bf) = (super::to_faer(a), super::to_faer(&b_hat));
+        let qf = super::to_faer(&q0);
+        let measure = |q: &faer::Mat<f64>| {
+            let q1 = q.subcols(0, nc);
+            let q2 = q.subcols(nc, n - nc);
+            let e = (q2.transpose() * &af * q1).norm_l2() / af.norm_l2();
+            let r = (q2.transpose() * &bf).norm_l2() / bf.norm_l2();
+            (e, r)
+        };
+        let worse = |(e, r): (f64, f64)| e.max(r);
+        let m0 = measure(&qf);
+        match super::refine::joint_correction(&af, &bf, &qf, nc) {
+            Some(qj) if worse(measure(&qj)) < worse(m0) => super::from_faer(qj.as_ref()),
+            _ => q0,
+        }
+    };
+    let q1 = super::columns(&q0, 0, nc);
+    let q2 = super::columns(&q0, nc, n);
     // the controllable part and its own staircase, thresholds from the whole pair
     let a11 = q1.transpose().matmul(a).matmul(&q1);
     let b1 = q1.transpose().matmul(b);
@@ -477,6 +512,82 @@ pub(crate) fn eigenvector_split(
     };
     out.split_residual = split_residual(a, &b_hat, &out);
     Ok(Some(out))
+}
+
+/// An eigendecomposition of `Aᵀ` (right eigenvectors as columns, eigenvalues).
+type Eigen = std::rc::Rc<(Mat<faer::c64>, Vec<faer::c64>)>;
+
+/// The cache: the depth of nested [`with_eigen_cache`] calls and the (matrix, result) pairs.
+type EigenCache = (usize, Vec<(Matrix<f64>, Eigen)>);
+
+/// At most this many eigendecompositions are kept within one call.
+const EIGEN_CACHE_SIZE: usize = 4;
+
+thread_local! {
+    /// Eigendecompositions computed within the current top-level call ([`with_eigen_cache`]),
+    /// keyed by the exact bits of the matrix: the candidate search, the rank guards and the
+    /// Kalman decomposition's passes meet the same A (or Aᵀ) several times, and an
+    /// eigendecomposition is a pure function of its input, so a repeat is looked up
+    /// instead of recomputed (no decision changes).
+    static EIGEN_CACHE: std::cell::RefCell<EigenCache> =
+        const { std::cell::RefCell::new((0, Vec::new())) };
+}
+
+/// Runs `f` with the eigendecomposition cache active (nested calls share it); the cache is
+/// emptied when the outermost call returns.
+pub(crate) fn with_eigen_cache<R>(f: impl FnOnce() -> R) -> R {
+    struct Scope;
+    impl Drop for Scope {
+        fn drop(&mut self) {
+            EIGEN_CACHE.with(|c| {
+                let mut c = c.borrow_mut();
+                c.0 -= 1;
+                if c.0 == 0 {
+                    c.1.clear();
+                }
+            });
+        }
+    }
+    EIGEN_CACHE.with(|c| c.borrow_mut().0 += 1);
+    let _scope = Scope;
+    f()
+}
+
+/// The eigendecomposition of `aᵀ` (faer), looked up in the cache of the current call when
+/// one is active; `None` when it fails.
+fn eigen_of_transpose(a: &Matrix<f64>) -> Option<Eigen> {
+    let active = EIGEN_CACHE.with(|c| {
+        let c = c.borrow();
+        if c.0 == 0 {
+            return None;
+        }
+        let same = |m: &Matrix<f64>| {
+            m.rows() == a.rows()
+                && m.as_slice()
+                    .iter()
+                    .zip(a.as_slice())
+                    .all(|(x, y)| x.to_bits() == y.to_bits())
+        };
+        Some(c.1.iter().find(|(m, _)| same(m)).map(|(_, e)| e.clone()))
+    });
+    if let Some(Some(hit)) = active {
+        return Some(hit);
+    }
+    let eig = super::to_faer(&a.transpose()).eigen().ok()?;
+    let out: Eigen = std::rc::Rc::new((
+        eig.U().to_owned(),
+        (0..a.rows()).map(|i| eig.S().column_vector()[i]).collect(),
+    ));
+    if active.is_some() {
+        EIGEN_CACHE.with(|c| {
+            let mut c = c.borrow_mut();
+            if c.1.len() == EIGEN_CACHE_SIZE {
+                c.1.remove(0);
+            }
+            c.1.push((a.clone(), out.clone()));
+        });
+    }
+    Some(out)
 }
 
 fn leading_block(m: &Matrix<f64>, rows: usize, cols: usize) -> Matrix<f64> {
@@ -822,6 +933,29 @@ mod tests {
         assert_eq!(plain.a.map(|v| v * k), big.a);
         assert_eq!(plain.c.unwrap().map(|v| v / k), big.c.unwrap());
         assert_eq!(plain.tol * k, big.tol);
+    }
+
+    #[test]
+    fn the_eigendecomposition_cache_returns_what_a_fresh_computation_does() {
+        // (identity) an eigendecomposition is a pure function of its input: within one call
+        // a repeat is the cached result, bit for bit the fresh one; outside a call nothing
+        // is kept.
+        let a = m(3, 3, &[1.0, 2.0, 0.0, -1.0, 0.5, 3.0, 0.0, 0.25, -2.0]);
+        let fresh = eigen_of_transpose(&a).unwrap();
+        let (first, second) = with_eigen_cache(|| {
+            (
+                eigen_of_transpose(&a).unwrap(),
+                eigen_of_transpose(&a).unwrap(),
+            )
+        });
+        assert!(std::rc::Rc::ptr_eq(&first, &second));
+        assert_eq!(fresh.1, first.1);
+        for j in 0..3 {
+            for i in 0..3 {
+                assert_eq!(fresh.0[(i, j)], first.0[(i, j)]);
+            }
+        }
+        EIGEN_CACHE.with(|c| assert!(c.borrow().0 == 0 && c.borrow().1.is_empty()));
     }
 
     #[test]

@@ -10,6 +10,7 @@ import pytest
 
 import statewright as sw
 from structure_helpers import assert_same_response, orthogonal, planted_kalman
+from swtest_helpers import EPS
 
 
 def planted_half(n, m, seed):
@@ -95,3 +96,45 @@ def test_planted_kalman_structure_is_right_or_refused(n, seed):
         assert sw.minimal_realization(a, b, c, d).n_states == sizes[0]
     except sw.ModelError as exc:
         assert "verification" in str(exc) or "missed" in str(exc)
+
+
+def survey_kalman_case(n, seed):
+    """The planted Kalman model of scripts/structure_survey.py for (n, seed), bit for bit."""
+    rng = np.random.default_rng(50_000 + 31 * n + seed)
+    cut = np.sort(rng.choice(np.arange(1, n), 3, replace=False))
+    sizes = tuple(int(x) for x in np.diff(np.concatenate(([0], cut, [n]))))
+    m, p = int(rng.integers(1, 3)), int(rng.integers(1, 3))
+    a, b, c = planted_kalman(sizes, m, p, rng, separated=False)
+    q = orthogonal(n, rng)
+    return q @ a @ q.T, q @ b, c @ q.T, np.zeros((p, m)), sizes
+
+
+@pytest.mark.parametrize("n, seed", [(20, 5), (100, 1), (100, 9)])
+def test_planted_kalman_sizes_after_the_refined_split(n, seed):
+    # (identity: sizes known by construction) these three survey draws were refused before
+    # the eigenvector-guided splits were refined: the eigenvector basis left B (or C) a
+    # component of 1e-12 .. 1e-10 outside the split, above the pattern check's
+    # 100 n eps cond(T). The sizes must now be the planted ones and the decomposition must
+    # be what it says it is.
+    A, B, C, D, sizes = survey_kalman_case(n, seed)
+    k = sw.kalman_decomposition(A, B, C, D)
+    assert k.sizes == sizes
+    T = k.transform
+    cond = np.linalg.cond(T)  # (numpy reference)
+    assert k.info["condition"] == pytest.approx(cond, rel=1e-6)
+    assert k.info["pattern_residual"] <= 100 * n * EPS * max(1.0, cond)
+    # the realization is (T^-1 A T, T^-1 B, C T) up to the pattern entries set to zero
+    # (identity, numpy solve)
+    r = k.realization
+    slack = 1e3 * n * EPS * cond
+    assert np.linalg.norm(np.linalg.solve(T, A @ T) - r.a) <= slack * np.linalg.norm(A)
+    assert np.linalg.norm(np.linalg.solve(T, B) - r.b) <= slack * np.linalg.norm(B)
+    assert np.linalg.norm(C @ T - r.c) <= slack * np.linalg.norm(C)
+    # B and C untouched in norm by the zeroing, the minimal part has the model's response
+    # (numpy solves of C (sI - A)^-1 B)
+    assert k.info["zeroed_b"] <= 100 * n * EPS and k.info["zeroed_c"] <= 100 * n * EPS
+    mini = k.minimal()
+    assert mini.n_states == sizes[0]
+    assert_same_response(tuple(mini), (A, B, C, D), delta=n * EPS * cond)
+    # the minimal realization agrees (its own verified search)
+    assert sw.minimal_realization(A, B, C, D).n_states == sizes[0]
