@@ -18,7 +18,8 @@
 use crate::error::require_finite;
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
-use crate::realize::{realize_f64, Form};
+use crate::realize::controllable::controllable_canonical_into;
+use crate::realize::{realize_f64, Form, MAX_ORDER};
 use crate::recover::certified_lanes::{LaneWork, LANES};
 use crate::recover::dyadic::transfer_function_dyadic;
 use crate::recover::{certified_accuracy, transfer_function_f64, Method};
@@ -127,7 +128,16 @@ pub fn realize_batch(
                 });
                 return;
             }
-            match realize_f64(&num[i * k..(i + 1) * k], den_i, form) {
+            let num_i = &num[i * k..(i + 1) * k];
+            if form == Form::ControllableCanonical && n <= MAX_ORDER {
+                // The default form written in place (same bits as realize_f64).
+                match controllable_canonical_into(num_i, den_i, ai, bi, ci) {
+                    Ok(direct) => di[0] = direct,
+                    Err(e) => failure.record(i, e),
+                }
+                return;
+            }
+            match realize_f64(num_i, den_i, form) {
                 Ok((ss, _)) => {
                     if n > 0 {
                         ai.copy_from_slice(ss.a.as_slice());

@@ -203,6 +203,77 @@ fn auto_and_exact_agree_and_exact_matches_the_product_of_the_diagonal() {
     assert!((exact[12] - reference).abs() <= f64::EPSILON * reference.abs());
 }
 
+/// realize_batch's in-place controllable canonical form against single `realize_f64`
+/// calls (the batch contract): equal bits, and the same error for the same index.
+#[test]
+fn controllable_batch_in_place_equals_single_calls_bit_for_bit() {
+    use crate::batch::realize_batch;
+    let mut rng = Lcg(5);
+    let mut value = || (rng.next() as f64 / (1u64 << 53) as f64) * 2.0 - 1.0;
+    for (n, k) in [(8, 9), (5, 3), (1, 2), (0, 1), (4, 5)] {
+        let count = 13;
+        let mut num: Vec<f64> = (0..count * k).map(|_| value()).collect();
+        let mut den: Vec<f64> = (0..count * (n + 1)).map(|_| 1e3 * value()).collect();
+        num[k..2 * k].iter_mut().for_each(|x| *x = 0.0); // zero numerator
+        num[2 * k] = 0.0; // a leading zero
+        den[3 * (n + 1)] = 1e-300; // huge coefficients after normalising (finite or not)
+        let r = realize_batch(&num, k, &den, n + 1, count, Form::ControllableCanonical);
+        let single = |num: &[f64], den: &[f64], i: usize| {
+            realize_f64(
+                &num[i * k..(i + 1) * k],
+                &den[i * (n + 1)..(i + 1) * (n + 1)],
+                Form::ControllableCanonical,
+            )
+        };
+        match r {
+            Ok(r) => {
+                for i in 0..count {
+                    let (ss, _) = single(&num, &den, i).unwrap();
+                    let bits = |x: &[f64]| x.iter().map(|v| v.to_bits()).collect::<Vec<_>>();
+                    assert_eq!(
+                        bits(&r.a[i * n * n..(i + 1) * n * n]),
+                        bits(ss.a.as_slice()),
+                        "a {i}"
+                    );
+                    assert_eq!(
+                        bits(&r.b[i * n..(i + 1) * n]),
+                        bits(ss.b.as_slice()),
+                        "b {i}"
+                    );
+                    assert_eq!(
+                        bits(&r.c[i * n..(i + 1) * n]),
+                        bits(ss.c.as_slice()),
+                        "c {i}"
+                    );
+                    assert_eq!(r.d[i].to_bits(), ss.d.as_slice()[0].to_bits(), "d {i}");
+                }
+            }
+            Err(err) => {
+                let first = (0..count)
+                    .find_map(|i| single(&num, &den, i).err().map(|e| (i, e)))
+                    .unwrap();
+                let want = ModelError::Batch {
+                    index: first.0,
+                    source: Box::new(first.1),
+                };
+                assert_eq!(err.to_string(), want.to_string());
+            }
+        }
+        // Overflow of the normalisation and a NaN: the smallest index, the single call's error.
+        den[3 * (n + 1)] = 1e-320;
+        num[3 * k + k - 1] = 1e300;
+        num[5 * k] = f64::NAN;
+        let err = realize_batch(&num, k, &den, n + 1, count, Form::ControllableCanonical)
+            .err()
+            .unwrap();
+        let want = ModelError::Batch {
+            index: 3,
+            source: Box::new(single(&num, &den, 3).err().unwrap()),
+        };
+        assert_eq!(err.to_string(), want.to_string());
+    }
+}
+
 /// The certified batch (models in SIMD lanes) against single calls of
 /// `transfer_function_f64(.., Method::Auto)` (the batch contract): equal bits for every
 /// model, in full and ragged lane groups, for certified models and for models the bound
