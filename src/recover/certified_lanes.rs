@@ -38,7 +38,9 @@
 use super::certified::Working;
 use super::double_double::Dd;
 
-/// Models per lane group (eight float64 lanes: one AVX-512 register, or two AVX2 registers).
+/// Models per lane group: eight float64 lanes, two 256-bit AVX2 registers per value (two
+/// independent instruction streams; measured faster here than one AVX-512 register, which
+/// lowers the clock).
 pub const LANES: usize = 8;
 
 type V = [f64; LANES];
@@ -114,10 +116,12 @@ fn load(dst: &mut [V], data: &[f64], len: usize, models: usize) {
 
 /// For each row (or column) of a matrix, the entries along it that are nonzero in some
 /// lane, in increasing order: `index[start[o]..start[o + 1]]`.
+/// `full` marks the entries nonzero in every lane (no lane to leave alone: no blend).
 #[derive(Default)]
 struct Pattern {
     start: Vec<usize>,
     index: Vec<usize>,
+    full: Vec<bool>,
 }
 
 impl Pattern {
@@ -125,20 +129,28 @@ impl Pattern {
     fn build(&mut self, x: &[V], lines: usize, along: usize, at: impl Fn(usize, usize) -> usize) {
         self.start.clear();
         self.index.clear();
+        self.full.clear();
         self.start.push(0);
         for o in 0..lines {
             for i in 0..along {
-                if x[at(o, i)].iter().any(|v| *v != 0.0) {
+                let entry = &x[at(o, i)];
+                if entry.iter().any(|v| *v != 0.0) {
                     self.index.push(i);
+                    self.full.push(entry.iter().all(|v| *v != 0.0));
                 }
             }
             self.start.push(self.index.len());
         }
     }
 
+    /// Entries along line o and whether each is nonzero in every lane.
     #[inline(always)]
-    fn line(&self, o: usize) -> &[usize] {
-        &self.index[self.start[o]..self.start[o + 1]]
+    fn line(&self, o: usize) -> impl Iterator<Item = (usize, bool)> + Clone + '_ {
+        let range = self.start[o]..self.start[o + 1];
+        self.index[range.clone()]
+            .iter()
+            .copied()
+            .zip(self.full[range].iter().copied())
     }
 }
 
@@ -230,12 +242,16 @@ fn two_prod<const FMA: bool>(a: V, b: V) -> (V, V) {
 
 /// `o += x · y` lane by lane, [`Dd::add_mul_f64`] on every lane (double-double `o`, `y`;
 /// float64 `x`), leaving a lane alone where its `x` is zero, as the scalar recursion skips
-/// that product.
+/// that product (no blend when `full`: x is nonzero in every lane).
 #[inline(always)]
-fn add_mul_dd<const FMA: bool>(oh: &mut V, ol: &mut V, x: &V, yh: &V, yl: &V) {
+fn add_mul_dd<const FMA: bool>(oh: &mut V, ol: &mut V, x: &V, yh: &V, yl: &V, full: bool) {
     let (hi, lo) = dd_add_mul::<FMA>(*oh, *ol, *x, *yh, *yl);
-    *oh = keep_where_zero(*x, *oh, hi);
-    *ol = keep_where_zero(*x, *ol, lo);
+    if full {
+        (*oh, *ol) = (hi, lo);
+    } else {
+        *oh = keep_where_zero(*x, *oh, hi);
+        *ol = keep_where_zero(*x, *ol, lo);
+    }
 }
 
 /// `o += x · y` lane by lane in float64 (not fused), a lane left alone where its `x` is zero.
@@ -321,10 +337,6 @@ impl LaneWork {
         #[cfg(target_arch = "x86_64")]
         {
             if std::arch::is_x86_feature_detected!("fma") {
-                if std::arch::is_x86_feature_detected!("avx512f") {
-                    // SAFETY: the CPU supports AVX-512F and FMA (checked just above).
-                    return unsafe { self.recursion_avx512_fma(n, m, p) };
-                }
                 if std::arch::is_x86_feature_detected!("avx2") {
                     // SAFETY: the CPU supports AVX2 and FMA (checked just above).
                     return unsafe { self.recursion_avx2_fma(n, m, p) };
@@ -386,12 +398,6 @@ impl LaneWork {
         ] {
             resize(v, len);
         }
-    }
-
-    #[cfg(target_arch = "x86_64")]
-    #[target_feature(enable = "avx512f,avx2,fma")]
-    unsafe fn recursion_avx512_fma(&mut self, n: usize, m: usize, p: usize) {
-        self.recursion::<true>(n, m, p);
     }
 
     #[cfg(target_arch = "x86_64")]
@@ -540,9 +546,9 @@ fn sparse_dd<const FMA: bool>(
         let row = rows.line(i);
         for j in 0..y_cols {
             let (mut h, mut lo) = (ZERO, ZERO);
-            for &l in row {
+            for (l, full) in row.clone() {
                 let e = l * y_cols + j;
-                add_mul_dd::<FMA>(&mut h, &mut lo, &x[i * x_cols + l], &yh[e], &yl[e]);
+                add_mul_dd::<FMA>(&mut h, &mut lo, &x[i * x_cols + l], &yh[e], &yl[e], full);
             }
             oh[i * y_cols + j] = h;
             ol[i * y_cols + j] = lo;
@@ -557,8 +563,13 @@ fn sparse_f64(x: &[V], x_cols: usize, rows: &Pattern, y: &[V], y_cols: usize, o:
         let row = rows.line(i);
         for j in 0..y_cols {
             let mut acc = ZERO;
-            for &l in row {
-                add_mul_f64(&mut acc, &x[i * x_cols + l], &y[l * y_cols + j]);
+            for (l, full) in row.clone() {
+                let (xv, yv) = (&x[i * x_cols + l], &y[l * y_cols + j]);
+                if full {
+                    acc = add(acc, mul(*xv, *yv));
+                } else {
+                    add_mul_f64(&mut acc, xv, yv);
+                }
             }
             o[i * y_cols + j] = acc;
         }
@@ -596,9 +607,9 @@ fn by_columns_dd<const FMA: bool>(
     for i in 0..n {
         for j in 0..m {
             let (mut h, mut lo) = (ZERO, ZERO);
-            for &l in columns.line(j) {
+            for (l, full) in columns.line(j) {
                 let e = i * n + l;
-                add_mul_dd::<FMA>(&mut h, &mut lo, &b[l * m + j], &xh[e], &xl[e]);
+                add_mul_dd::<FMA>(&mut h, &mut lo, &b[l * m + j], &xh[e], &xl[e], full);
             }
             oh[i * m + j] = h;
             ol[i * m + j] = lo;
