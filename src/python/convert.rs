@@ -242,6 +242,14 @@ pub(crate) fn batch_dims(
 }
 
 /// An owned row-major copy of a stack (no copy beyond one when it is contiguous).
+/// A row-major copy of a 2-D array (one memcpy when it is contiguous).
+pub(crate) fn owned_2d(x: &PyReadonlyArray2<'_, f64>) -> Vec<f64> {
+    match x.as_slice() {
+        Ok(s) => s.to_vec(),
+        Err(_) => x.as_array().iter().copied().collect(),
+    }
+}
+
 pub(crate) fn owned(x: &PyReadonlyArray3<'_, f64>) -> Vec<f64> {
     match x.as_slice() {
         Ok(s) => s.to_vec(),
