@@ -116,12 +116,14 @@ fn load(dst: &mut [V], data: &[f64], len: usize, models: usize) {
 
 /// For each row (or column) of a matrix, the entries along it that are nonzero in some
 /// lane, in increasing order: `index[start[o]..start[o + 1]]`.
-/// `full` marks the entries nonzero in every lane (no lane to leave alone: no blend).
+/// `full` marks the entries nonzero in every lane (no lane to leave alone: no blend),
+/// `unit` those equal to 1 in every lane (the ones of a companion matrix).
 #[derive(Default)]
 struct Pattern {
     start: Vec<usize>,
     index: Vec<usize>,
     full: Vec<bool>,
+    unit: Vec<bool>,
 }
 
 impl Pattern {
@@ -130,6 +132,7 @@ impl Pattern {
         self.start.clear();
         self.index.clear();
         self.full.clear();
+        self.unit.clear();
         self.start.push(0);
         for o in 0..lines {
             for i in 0..along {
@@ -137,6 +140,7 @@ impl Pattern {
                 if entry.iter().any(|v| *v != 0.0) {
                     self.index.push(i);
                     self.full.push(entry.iter().all(|v| *v != 0.0));
+                    self.unit.push(entry.iter().all(|v| *v == 1.0));
                 }
             }
             self.start.push(self.index.len());
@@ -151,6 +155,12 @@ impl Pattern {
             .iter()
             .copied()
             .zip(self.full[range].iter().copied())
+    }
+
+    /// Whether line o starts with an entry equal to 1 in every lane.
+    #[inline(always)]
+    fn starts_with_unit(&self, o: usize) -> bool {
+        self.start[o] < self.start[o + 1] && self.unit[self.start[o]]
     }
 }
 
@@ -544,16 +554,42 @@ fn sparse_dd<const FMA: bool>(
 ) {
     for i in 0..rows.start.len() - 1 {
         let row = rows.line(i);
+        let unit_first = rows.starts_with_unit(i);
         for j in 0..y_cols {
             let (mut h, mut lo) = (ZERO, ZERO);
-            for (l, full) in row.clone() {
+            for (k, (l, full)) in row.clone().enumerate() {
                 let e = l * y_cols + j;
+                if k == 0 && unit_first && copies_exactly(&yh[e], &yl[e]) {
+                    (h, lo) = (add(yh[e], ZERO), add(yl[e], ZERO));
+                    continue;
+                }
                 add_mul_dd::<FMA>(&mut h, &mut lo, &x[i * x_cols + l], &yh[e], &yl[e], full);
             }
             oh[i * y_cols + j] = h;
             ol[i * y_cols + j] = lo;
         }
     }
+}
+
+/// Whether `0 + 1 · y`, the first product of a row whose entry is 1 in every lane, equals
+/// `(y_hi + 0, y_lo + 0)` bit for bit on every lane, so it need not be computed.
+///
+/// It does when y is finite, normalised (`fl(y_hi + y_lo) = y_hi`) and below 2⁹⁹⁶ (where
+/// Dekker's splitting cannot overflow). Then in [`Dd::add_mul_f64`]: the product is
+/// `y_hi` exactly and its error +0 (an exact zero sum is +0 in round-to-nearest; with
+/// splitting, `(1·b_h − y_hi) + b_l` cancels exactly); `two_sum(+0, y_hi)` gives
+/// `s = y_hi + 0` and error +0; the low sum is `y_lo + 0`; and `fast_two_sum` returns
+/// `(s, y_lo + 0)` since `fl(s + y_lo) = s` (for y_hi = ±0 normalisation forces y_lo = ±0,
+/// and every zero comes out +0 — which is what adding +0 does). Otherwise (an overflowing or
+/// unnormalised lane: never seen in practice, but possible) the product is computed.
+#[inline(always)]
+fn copies_exactly(yh: &V, yl: &V) -> bool {
+    const LIMIT: f64 = 6.696928794914171e299; // 2^996
+    let mut ok = true;
+    for t in 0..LANES {
+        ok &= (yh[t] + yl[t] == yh[t]) & (yh[t].abs() < LIMIT);
+    }
+    ok
 }
 
 /// [`sparse_dd`] in float64 (the bound matrices).
@@ -656,12 +692,12 @@ mod tests {
             Matrix::from_row_major(r, c, (0..r * c).map(|_| rng.entry(huge)).collect()).unwrap()
         };
         let mut ss = StateSpace {
-            a: fill(n, n, kind == 2),
+            a: fill(n, n, kind >= 2),
             b: fill(n, m, false),
             c: fill(p, n, false),
             d: fill(p, m, false),
         };
-        if kind == 1 && n > 0 {
+        if (kind == 1 || kind == 3) && n > 0 {
             // A companion matrix (the realize_batch output): ones above the diagonal.
             let last: Vec<f64> = (0..n).map(|j| ss.a.as_slice()[(n - 1) * n + j]).collect();
             let mut a = vec![0.0; n * n];
@@ -761,7 +797,7 @@ mod tests {
     fn lanes_equal_the_scalar_recursion_bit_for_bit() {
         let mut rng = Rng(7);
         for shape in SHAPES {
-            for kind in 0..3 {
+            for kind in 0..4 {
                 // Full groups and ragged ones (fewer models than lanes).
                 for count in [LANES, 1, LANES - 1, 2] {
                     let models: Vec<_> = (0..count).map(|_| model(&mut rng, shape, kind)).collect();
@@ -777,7 +813,7 @@ mod tests {
     fn dekker_lanes_equal_the_dekker_scalar_recursion_bit_for_bit() {
         let mut rng = Rng(11);
         for shape in SHAPES {
-            for kind in 0..3 {
+            for kind in 0..4 {
                 let models: Vec<_> = (0..LANES - 1)
                     .map(|_| model(&mut rng, shape, kind))
                     .collect();
