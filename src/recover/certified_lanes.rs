@@ -18,18 +18,26 @@
 //!   product whose factor is zero in *every* lane (the fixed zeros of a companion form) is
 //!   not computed at all, by a list of the entries nonzero in some lane made once per
 //!   group of models;
-//! * the double-double operations are the scalar ones ([`super::double_double::Dd`]), and the
-//!   product error comes from the same variant (fused multiply-add where the CPU has it,
-//!   Dekker's splitting otherwise) as the scalar path picks on the same CPU, so equal bits
-//!   do not depend on which of the two runs;
+//! * the first product of a matrix row whose entry is 1 in every lane (the ones of a
+//!   companion matrix) is `0 + 1 · y`, which equals `y` (zeros made +0) bit for bit when y
+//!   is finite, normalised and below 2⁹⁹⁶: then it is copied, otherwise computed (the
+//!   proof is at `copies_exactly`);
+//! * the double-double operations are written lane-wide, operation for operation as in
+//!   [`super::double_double::Dd`], and the product error comes from the same variant (fused
+//!   multiply-add where the CPU has it, Dekker's splitting otherwise) as the scalar path
+//!   picks on the same CPU, so equal bits do not depend on which of the two runs;
 //! * no floating-point operation is reassociated or fused beyond the scalar code's own.
 //!
 //! # Numerical aspects
 //! The same as the scalar recursion (first-order running componentwise bound, Higham 2002,
 //! ch. 3); the acceptance test ([`super::certified_accuracy`]) is shared, so a batch accepts
 //! exactly the models a single call accepts. Non-finite lanes do not disturb their
-//! neighbours (no branch depends on a value). One [`LaneWork`] per thread holds every
-//! buffer; nothing is allocated per group once the shape is known.
+//! neighbours: the only branches on values choose between evaluations with the same bits.
+//! The sign and payload of a NaN are unspecified (IEEE 754, and Rust) and may differ from
+//! the scalar path's; a NaN arises only in lanes that overflow, which both reject. One
+//! [`LaneWork`] per thread holds every buffer; nothing is allocated per group once the
+//! shape is known. Speed (order 8, one core, processor time): about 1.6 to 2 µs per model
+//! against 5 to 7 µs for the scalar recursion (`cargo run --release --example time_batch`).
 //!
 //! # References
 //! N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM 2002;
