@@ -15,10 +15,14 @@
 //! smallest failing index (all models are tried, so the index does not depend on thread
 //! timing), and no output is returned.
 
+use crate::error::require_finite;
 use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
-use crate::realize::{realize_f64, Form};
-use crate::recover::{transfer_function_f64, Method};
+use crate::realize::controllable::controllable_canonical_into;
+use crate::realize::{realize_f64, Form, MAX_ORDER};
+use crate::recover::certified_lanes::{LaneWork, LANES};
+use crate::recover::dyadic::transfer_function_dyadic;
+use crate::recover::{certified_accuracy, transfer_function_f64, Method};
 use crate::state_space::StateSpace;
 use rayon::prelude::*;
 use std::sync::Mutex;
@@ -124,7 +128,16 @@ pub fn realize_batch(
                 });
                 return;
             }
-            match realize_f64(&num[i * k..(i + 1) * k], den_i, form) {
+            let num_i = &num[i * k..(i + 1) * k];
+            if form == Form::ControllableCanonical && n <= MAX_ORDER {
+                // The default form written in place (same bits as realize_f64).
+                match controllable_canonical_into(num_i, den_i, ai, bi, ci) {
+                    Ok(direct) => di[0] = direct,
+                    Err(e) => failure.record(i, e),
+                }
+                return;
+            }
+            match realize_f64(num_i, den_i, form) {
                 Ok((ss, _)) => {
                     if n > 0 {
                         ai.copy_from_slice(ss.a.as_slice());
@@ -173,6 +186,9 @@ pub fn transfer_function_batch_with(
     if method == Method::Hessenberg {
         return hessenberg_batch(a, b, c, d, count, (n, m, p)).map(|r| r.transfer);
     }
+    if method == Method::Auto && n <= crate::recover::MAX_RECURSION_ORDER {
+        return certified_batch(a, b, c, d, count, (n, m, p));
+    }
     let per_num = p * m * (n + 1);
     let total = count.saturating_mul(per_num + n + 1);
     check_size("a", total)?;
@@ -203,6 +219,95 @@ pub fn transfer_function_batch_with(
                     den_i.copy_from_slice(&dn);
                 }
                 Err(e) => failure.record(i, e),
+            }
+        });
+    failure.into_result()?;
+    if per_num == 0 {
+        num = Vec::new();
+    }
+    Ok(TransferBatch { num, den })
+}
+
+/// Models `from..to` of stacked matrices of `size` entries each.
+fn stacked(x: &[f64], from: usize, to: usize, size: usize) -> &[f64] {
+    &x[from * size..to * size]
+}
+
+/// `Method::Auto` over a batch, [`LANES`] models at a time in the SIMD lanes of
+/// [`crate::recover::certified_lanes`] (one workspace per thread, nothing allocated per
+/// model); a model the double-double bound does not certify goes to the exact route, as a
+/// single call does. Equal bit for bit to single calls of
+/// [`transfer_function_f64`]`(.., Method::Auto)`, errors included.
+fn certified_batch(
+    a: &[f64],
+    b: &[f64],
+    c: &[f64],
+    d: &[f64],
+    count: usize,
+    (n, m, p): (usize, usize, usize),
+) -> Result<TransferBatch> {
+    let per_num = p * m * (n + 1);
+    let total = count.saturating_mul(per_num + n + 1);
+    check_size("a", total)?;
+    let slot = per_num.max(1); // as in realize_batch: one chunk per model even when p·m = 0
+    let (mut num, mut den) = (vec![0.0; count * slot], vec![0.0; count * (n + 1)]);
+    let sizes = (n * n, n * m, p * n, p * m);
+    let failure = FirstError::new();
+    num.par_chunks_mut(slot * LANES)
+        .zip(den.par_chunks_mut((n + 1) * LANES))
+        .enumerate()
+        .for_each_init(LaneWork::default, |work, (group, (num_g, den_g))| {
+            let first = group * LANES;
+            let models = den_g.len() / (n + 1);
+            let part = |x, size| stacked(x, first, first + models, size);
+            let (ag, bg, cg, dg) = (
+                part(a, sizes.0),
+                part(b, sizes.1),
+                part(c, sizes.2),
+                part(d, sizes.3),
+            );
+            work.run(ag, bg, cg, dg, models, (n, m, p));
+            for t in 0..models {
+                let model = |x, size| stacked(x, t, t + 1, size);
+                let (at, bt, ct, dt) = (
+                    model(ag, sizes.0),
+                    model(bg, sizes.1),
+                    model(cg, sizes.2),
+                    model(dg, sizes.3),
+                );
+                // The checks of a single call, in its order.
+                let bad = [("a", at), ("b", bt), ("c", ct), ("d", dt)]
+                    .into_iter()
+                    .find_map(|(arg, x)| require_finite(arg, x).err());
+                if let Some(e) = bad {
+                    failure.record(first + t, e);
+                    continue;
+                }
+                let num_t = &mut num_g[t * slot..t * slot + per_num];
+                let den_t = &mut den_g[t * (n + 1)..(t + 1) * (n + 1)];
+                let r = work.lane(t);
+                let values = [r.coeffs, r.numerator];
+                if certified_accuracy(values, [r.coeff_bounds, r.numerator_bounds]).is_some() {
+                    num_t.copy_from_slice(r.numerator);
+                    den_t.copy_from_slice(r.coeffs);
+                    continue;
+                }
+                let matrix = |rows: usize, cols: usize, x: &[f64]| {
+                    Matrix::from_row_major(rows, cols, x.to_vec()).expect("slice")
+                };
+                let ss = StateSpace {
+                    a: matrix(n, n, at),
+                    b: matrix(n, m, bt),
+                    c: matrix(p, n, ct),
+                    d: matrix(p, m, dt),
+                };
+                match transfer_function_dyadic(&ss) {
+                    Ok((nm, dn)) => {
+                        num_t.copy_from_slice(&nm);
+                        den_t.copy_from_slice(&dn);
+                    }
+                    Err(e) => failure.record(first + t, e),
+                }
             }
         });
     failure.into_result()?;

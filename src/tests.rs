@@ -9,6 +9,7 @@ use crate::realize::{realize_companion, realize_f64, Form};
 use crate::recover::dyadic::{round_ratio, round_scaled};
 use crate::recover::faddeev_leverrier::{faddeev_leverrier, transfer_function};
 use crate::recover::{faddeev_leverrier_f64, transfer_function_f64, Method};
+use crate::state_space::StateSpace;
 use num_bigint::BigInt;
 use num_rational::BigRational;
 
@@ -200,6 +201,177 @@ fn auto_and_exact_agree_and_exact_matches_the_product_of_the_diagonal() {
         product.to_f64().unwrap()
     };
     assert!((exact[12] - reference).abs() <= f64::EPSILON * reference.abs());
+}
+
+/// realize_batch's in-place controllable canonical form against single `realize_f64`
+/// calls (the batch contract): equal bits, and the same error for the same index.
+#[test]
+fn controllable_batch_in_place_equals_single_calls_bit_for_bit() {
+    use crate::batch::realize_batch;
+    let mut rng = Lcg(5);
+    let mut value = || (rng.next() as f64 / (1u64 << 53) as f64) * 2.0 - 1.0;
+    for (n, k) in [(8, 9), (5, 3), (1, 2), (0, 1), (4, 5)] {
+        let count = 13;
+        let mut num: Vec<f64> = (0..count * k).map(|_| value()).collect();
+        let mut den: Vec<f64> = (0..count * (n + 1)).map(|_| 1e3 * value()).collect();
+        num[k..2 * k].iter_mut().for_each(|x| *x = 0.0); // zero numerator
+        num[2 * k] = 0.0; // a leading zero
+        den[3 * (n + 1)] = 1e-300; // huge coefficients after normalising (finite or not)
+        let r = realize_batch(&num, k, &den, n + 1, count, Form::ControllableCanonical);
+        let single = |num: &[f64], den: &[f64], i: usize| {
+            realize_f64(
+                &num[i * k..(i + 1) * k],
+                &den[i * (n + 1)..(i + 1) * (n + 1)],
+                Form::ControllableCanonical,
+            )
+        };
+        match r {
+            Ok(r) => {
+                for i in 0..count {
+                    let (ss, _) = single(&num, &den, i).unwrap();
+                    let bits = |x: &[f64]| x.iter().map(|v| v.to_bits()).collect::<Vec<_>>();
+                    assert_eq!(
+                        bits(&r.a[i * n * n..(i + 1) * n * n]),
+                        bits(ss.a.as_slice()),
+                        "a {i}"
+                    );
+                    assert_eq!(
+                        bits(&r.b[i * n..(i + 1) * n]),
+                        bits(ss.b.as_slice()),
+                        "b {i}"
+                    );
+                    assert_eq!(
+                        bits(&r.c[i * n..(i + 1) * n]),
+                        bits(ss.c.as_slice()),
+                        "c {i}"
+                    );
+                    assert_eq!(r.d[i].to_bits(), ss.d.as_slice()[0].to_bits(), "d {i}");
+                }
+            }
+            Err(err) => {
+                let first = (0..count)
+                    .find_map(|i| single(&num, &den, i).err().map(|e| (i, e)))
+                    .unwrap();
+                let want = ModelError::Batch {
+                    index: first.0,
+                    source: Box::new(first.1),
+                };
+                assert_eq!(err.to_string(), want.to_string());
+            }
+        }
+        // Overflow of the normalisation and a NaN: the smallest index, the single call's error.
+        den[3 * (n + 1)] = 1e-320;
+        num[3 * k + k - 1] = 1e300;
+        num[5 * k] = f64::NAN;
+        let err = realize_batch(&num, k, &den, n + 1, count, Form::ControllableCanonical)
+            .err()
+            .unwrap();
+        let want = ModelError::Batch {
+            index: 3,
+            source: Box::new(single(&num, &den, 3).err().unwrap()),
+        };
+        assert_eq!(err.to_string(), want.to_string());
+    }
+}
+
+/// The certified batch (models in SIMD lanes) against single calls of
+/// `transfer_function_f64(.., Method::Auto)` (the batch contract): equal bits for every
+/// model, in full and ragged lane groups, for certified models and for models the bound
+/// cannot certify (spread eigenvalues: the exact route runs), and the same error for the
+/// same smallest failing index.
+#[test]
+fn certified_batch_equals_single_calls_bit_for_bit() {
+    use crate::batch::transfer_function_batch;
+    use crate::recover::certified_lanes::LANES;
+    let mut rng = Lcg(99);
+    let value = |rng: &mut Lcg| (rng.next() as f64 / (1u64 << 53) as f64) * 2.0 - 1.0;
+    for (n, m, p) in [(6, 1, 1), (4, 2, 3), (1, 1, 1), (0, 1, 1)] {
+        for count in [3 * LANES + 3, LANES, 1] {
+            let mut models = Vec::new();
+            for i in 0..count {
+                let mut fill = |r: usize, c: usize| {
+                    Matrix::from_row_major(r, c, (0..r * c).map(|_| value(&mut rng)).collect())
+                        .unwrap()
+                };
+                let mut ss = StateSpace {
+                    a: fill(n, n),
+                    b: fill(n, m),
+                    c: fill(p, n),
+                    d: fill(p, m),
+                };
+                if i % 5 == 2 && n > 1 {
+                    // Eigenvalues spread over eight decades: not certified, the exact route.
+                    ss.a = spread_matrix(n);
+                    for k in 0..n {
+                        ss.a.set(k, k, -(10f64).powf(-4.0 + 8.0 * k as f64 / (n - 1) as f64));
+                    }
+                }
+                if i % 7 == 3 && n > 0 {
+                    ss.a.set(0, n - 1, 0.0); // zeros in some lanes only
+                    ss.b.set(n - 1, 0, 0.0);
+                }
+                models.push(ss);
+            }
+            let stack = |f: &dyn Fn(&StateSpace<f64>) -> &Matrix<f64>| -> Vec<f64> {
+                models
+                    .iter()
+                    .flat_map(|s| f(s).as_slice().to_vec())
+                    .collect()
+            };
+            let (a, b, c, d) = (
+                stack(&|s| &s.a),
+                stack(&|s| &s.b),
+                stack(&|s| &s.c),
+                stack(&|s| &s.d),
+            );
+            let batch = transfer_function_batch(&a, &b, &c, &d, count, n, m, p).unwrap();
+            let per_num = p * m * (n + 1);
+            let mut fallbacks = 0;
+            for (i, ss) in models.iter().enumerate() {
+                let (num, den, acc) = transfer_function_f64(ss, Method::Auto).unwrap();
+                fallbacks += usize::from(acc.method == "exact, rounded once");
+                let bits = |x: &[f64]| x.iter().map(|v| v.to_bits()).collect::<Vec<_>>();
+                assert_eq!(
+                    bits(&batch.den[i * (n + 1)..(i + 1) * (n + 1)]),
+                    bits(&den),
+                    "den {i}"
+                );
+                assert_eq!(
+                    bits(&batch.num[i * per_num..(i + 1) * per_num]),
+                    bits(&num),
+                    "num {i}"
+                );
+            }
+            if n > 1 && count > 2 {
+                assert!(
+                    fallbacks > 0,
+                    "the exact route was exercised ({n}, {m}, {p})"
+                );
+            }
+            // A non-finite model: the batch names the smallest failing index with the
+            // single call's error.
+            if n > 0 && count > 2 {
+                let mut bad_c = c.clone();
+                bad_c[2 * p * n] = f64::INFINITY;
+                let mut bad_a = a.clone();
+                bad_a[(count - 1) * n * n] = f64::NAN;
+                let err = transfer_function_batch(&bad_a, &b, &bad_c, &d, count, n, m, p)
+                    .err()
+                    .unwrap();
+                let mut single = models[2].clone();
+                single.c.set(0, 0, f64::INFINITY);
+                let want = transfer_function_f64(&single, Method::Auto).err().unwrap();
+                assert_eq!(
+                    err.to_string(),
+                    ModelError::Batch {
+                        index: 2,
+                        source: Box::new(want)
+                    }
+                    .to_string()
+                );
+            }
+        }
+    }
 }
 
 #[test]

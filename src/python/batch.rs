@@ -1,6 +1,6 @@
 //! Bindings of the batch functions (rayon in the core, the GIL released for the whole batch).
 
-use super::convert::{array_nd, batch_dims, owned, Quad};
+use super::convert::{array_nd, batch_dims, owned, owned_2d, Quad};
 use super::errors::{run, to_py};
 use super::realize::parse_form;
 use crate::batch;
@@ -25,8 +25,7 @@ pub(crate) fn realize_batch<'py>(
             found: format!("{count_den} rows"),
         }));
     }
-    let num: Vec<f64> = num.as_array().iter().copied().collect();
-    let den: Vec<f64> = den.as_array().iter().copied().collect();
+    let (num, den) = (owned_2d(&num), owned_2d(&den));
     let r = run(py, move || {
         batch::realize_batch(&num, k, &den, n1, count, form)
     })?;

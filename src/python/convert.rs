@@ -9,7 +9,8 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
 use numpy::{
-    ndarray, PyArray, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3, PyUntypedArrayMethods,
+    ndarray, PyArray, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
+    PyUntypedArrayMethods,
 };
 use pyo3::prelude::*;
 
@@ -57,23 +58,64 @@ pub(crate) fn array2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py
     array_nd(py, m.into_vec(), &shape)
 }
 
-/// A new C-contiguous array owning `data` (no copy, no Python-level reshape).
+/// Results up to this many values are copied into an array numpy allocates itself (one
+/// Python object); larger ones are handed over without a copy (an array plus the object
+/// that owns the Rust buffer, whose creation costs more than copying a few kilobytes).
+const COPY_BELOW: usize = 1024;
+
+/// A new C-contiguous array holding `data` (no Python-level reshape).
 pub(crate) fn array_nd<'py>(
     py: Python<'py>,
     data: Vec<f64>,
     shape: &[usize],
 ) -> PyResult<Bound<'py, PyAny>> {
+    Ok(typed_array(py, data, shape)?.into_any())
+}
+
+/// A new numpy-allocated C-contiguous array with a copy of `data`, read-only when `frozen`.
+///
+/// # Errors
+/// An internal error if `shape` does not hold `data.len()` values.
+pub(crate) fn copied_array<'py>(
+    py: Python<'py>,
+    data: &[f64],
+    shape: &[usize],
+    frozen: bool,
+) -> PyResult<Bound<'py, PyArray<f64, ndarray::IxDyn>>> {
+    if shape.iter().product::<usize>() != data.len() {
+        return Err(ModelError::new_err("internal error: result shape"));
+    }
+    // SAFETY: `new` returns an uninitialised C-contiguous array of exactly `data.len()`
+    // float64 values (the product of `shape`, checked just above), not yet shared with
+    // Python; every value is written before it is returned, and clearing the WRITEABLE
+    // flag of a fresh array is what numpy's own `setflags(write=False)` does.
+    unsafe {
+        let arr = PyArray::<f64, _>::new(py, ndarray::IxDyn(shape), false);
+        std::ptr::copy_nonoverlapping(data.as_ptr(), arr.data(), data.len());
+        if frozen {
+            (*arr.as_array_ptr()).fields.flags &= !numpy::npyffi::NPY_ARRAY_WRITEABLE;
+        }
+        Ok(arr)
+    }
+}
+
+fn typed_array<'py>(
+    py: Python<'py>,
+    data: Vec<f64>,
+    shape: &[usize],
+) -> PyResult<Bound<'py, PyArray<f64, ndarray::IxDyn>>> {
+    if data.len() <= COPY_BELOW {
+        return copied_array(py, &data, shape, false);
+    }
     let owned = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(shape), data)
         .map_err(|e| ModelError::new_err(format!("internal error: result shape ({e})")))?;
-    Ok(PyArray::from_owned_array(py, owned).into_any())
+    Ok(PyArray::from_owned_array(py, owned))
 }
 
 /// As [`array2`], marked read-only (the arrays of a frozen Realization).
 pub(crate) fn frozen2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {
     let shape = [m.rows(), m.cols()];
-    let owned = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(&shape), m.into_vec())
-        .map_err(|e| ModelError::new_err(format!("internal error: result shape ({e})")))?;
-    let arr = PyArray::from_owned_array(py, owned);
+    let arr = typed_array(py, m.into_vec(), &shape)?;
     // SAFETY: the array was created just above and is not shared yet; clearing the
     // WRITEABLE flag is what numpy's own `setflags(write=False)` does.
     unsafe {
@@ -200,6 +242,14 @@ pub(crate) fn batch_dims(
 }
 
 /// An owned row-major copy of a stack (no copy beyond one when it is contiguous).
+/// A row-major copy of a 2-D array (one memcpy when it is contiguous).
+pub(crate) fn owned_2d(x: &PyReadonlyArray2<'_, f64>) -> Vec<f64> {
+    match x.as_slice() {
+        Ok(s) => s.to_vec(),
+        Err(_) => x.as_array().iter().copied().collect(),
+    }
+}
+
 pub(crate) fn owned(x: &PyReadonlyArray3<'_, f64>) -> Vec<f64> {
     match x.as_slice() {
         Ok(s) => s.to_vec(),

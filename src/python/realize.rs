@@ -1,7 +1,8 @@
 //! Bindings of the realizations: SISO canonical forms and block forms of transfer matrices.
 
 use super::convert::{
-    exact_matrix, exact_quad, exact_vector, quad, vector_from, ExactIn, ExactOut, Quad,
+    copied_array, exact_matrix, exact_quad, exact_vector, quad, vector_from, ExactIn, ExactOut,
+    Quad,
 };
 use super::errors::{run, run_small, to_py, SMALL_ORDER};
 use crate::error::ModelError as CoreError;
@@ -9,7 +10,7 @@ use crate::matrix::Matrix;
 use crate::realize::transfer_matrix::{self, BlockForm};
 use crate::realize::{self, Form};
 use num_rational::BigRational;
-use numpy::{ndarray, PyReadonlyArray1, PyReadonlyArray3};
+use numpy::{ndarray, PyArray1, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray3};
 use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList};
 
@@ -54,6 +55,74 @@ impl<'py> FloatCoefficients<'py> {
     }
 }
 
+/// Reads a short coefficient argument (fewer than [`SMALL_ORDER`] values) into `buf`: a
+/// plain list item by item (its TypeError as [`FloatCoefficients::read`] raises it), or a
+/// C-contiguous float64 1-D array, copied at once while the GIL is held. `None` for
+/// anything else (the general route reads it then).
+fn read_small<'a>(
+    x: &Bound<'_, PyAny>,
+    buf: &'a mut [f64; SMALL_ORDER],
+) -> PyResult<Option<&'a [f64]>> {
+    if let Ok(list) = x.cast::<PyList>() {
+        let len = list.len();
+        if len == 0 || len >= SMALL_ORDER {
+            return Ok(None);
+        }
+        for (slot, item) in buf.iter_mut().zip(list.iter()) {
+            *slot = item.extract::<f64>()?;
+        }
+        return Ok(Some(&buf[..len]));
+    }
+    let Ok(arr) = x.cast::<PyArray1<f64>>() else {
+        return Ok(None);
+    };
+    // SAFETY: the GIL is held and no Python code runs until the copy below is done; the
+    // slice is not kept (`as_slice` refuses a non-contiguous array).
+    let Ok(values) = (unsafe { arr.as_slice() }) else {
+        return Ok(None);
+    };
+    if values.is_empty() || values.len() >= SMALL_ORDER {
+        return Ok(None);
+    }
+    buf[..values.len()].copy_from_slice(values);
+    Ok(Some(&buf[..values.len()]))
+}
+
+/// The controllable canonical form of a short num/den, built in place on the stack by
+/// [`realize::controllable::controllable_canonical_into`] (the same bits and errors as
+/// `realize_f64`) and copied into four read-only arrays: the fast path of single calls in
+/// the default form. `None` where that route does not apply (long or unusual arguments, a
+/// zero leading denominator coefficient, a numerator longer than the denominator).
+fn small_controllable<'py>(
+    py: Python<'py>,
+    num: &Bound<'py, PyAny>,
+    den: &Bound<'py, PyAny>,
+) -> PyResult<Option<Quad<'py>>> {
+    let (mut num_buf, mut den_buf) = ([0.0; SMALL_ORDER], [0.0; SMALL_ORDER]);
+    let Some(num) = read_small(num, &mut num_buf)? else {
+        return Ok(None);
+    };
+    let Some(den) = read_small(den, &mut den_buf)? else {
+        return Ok(None);
+    };
+    if den[0] == 0.0 || num.len() > den.len() {
+        return Ok(None);
+    }
+    let n = den.len() - 1;
+    let mut a = [0.0; SMALL_ORDER * SMALL_ORDER];
+    let (mut b, mut c) = ([0.0; SMALL_ORDER], [0.0; SMALL_ORDER]);
+    let (a, b, c) = (&mut a[..n * n], &mut b[..n], &mut c[..n]);
+    let d = run_small(|| {
+        realize::controllable::controllable_canonical_into(num, den, &mut *a, &mut *b, &mut *c)
+    })?;
+    Ok(Some((
+        copied_array(py, a, &[n, n], true)?.into_any(),
+        copied_array(py, b, &[n, 1], true)?.into_any(),
+        copied_array(py, c, &[1, n], true)?.into_any(),
+        copied_array(py, &[d], &[1, 1], true)?.into_any(),
+    )))
+}
+
 #[pyfunction]
 pub(crate) fn realize_float<'py>(
     py: Python<'py>,
@@ -62,6 +131,11 @@ pub(crate) fn realize_float<'py>(
     form: &str,
 ) -> PyResult<(Quad<'py>, Option<Bound<'py, PyDict>>)> {
     let form = parse_form(form)?;
+    if form == Form::ControllableCanonical {
+        if let Some(out) = small_controllable(py, num, den)? {
+            return Ok((out, None));
+        }
+    }
     let (num, den) = (FloatCoefficients::read(num)?, FloatCoefficients::read(den)?);
     let small = match (num.as_slice(), den.as_slice()) {
         (Some(n), Some(d)) if d.len() < SMALL_ORDER => Some((n, d)),

@@ -158,19 +158,41 @@ pub struct CertifiedSequence {
 }
 
 impl CertifiedSequence {
-    /// Largest bound on the error relative to the *exact* value over everything computed:
-    /// `bound / (|value| − bound)`, since `|exact| ≥ |value| − bound`; ∞ where the bound
-    /// reaches the computed value (no relative accuracy is certified there); a zero bound
-    /// counts as 0.
+    /// Largest bound on the error relative to the *exact* value over everything computed
+    /// ([`worst_relative_bound_of`] over coefficients, adjugates and numerator).
     pub fn worst_relative_bound(&self) -> f64 {
-        let pairs = self
-            .coeffs
-            .iter()
-            .zip(&self.coeff_bounds)
-            .chain(self.adjugates.iter().zip(&self.adjugate_bounds))
-            .chain(self.numerator.iter().zip(&self.numerator_bounds));
-        let mut worst: f64 = 0.0;
-        for (v, e) in pairs {
+        worst_relative_bound_of(
+            [&self.coeffs, &self.adjugates, &self.numerator],
+            [
+                &self.coeff_bounds,
+                &self.adjugate_bounds,
+                &self.numerator_bounds,
+            ],
+        )
+    }
+
+    /// True when every result and bound is finite.
+    pub fn is_finite(&self) -> bool {
+        all_finite(
+            [&self.coeffs, &self.adjugates, &self.numerator],
+            [
+                &self.coeff_bounds,
+                &self.adjugate_bounds,
+                &self.numerator_bounds,
+            ],
+        )
+    }
+}
+
+/// Largest bound on the error relative to the *exact* value over the values and their
+/// bounds (paired part by part): `bound / (|value| − bound)`, since
+/// `|exact| ≥ |value| − bound`; ∞ where the bound reaches the computed value (no relative
+/// accuracy is certified there); a zero bound counts as 0. Shared by the scalar and the
+/// lane recursion, so both decide alike.
+pub fn worst_relative_bound_of<const P: usize>(values: [&[f64]; P], bounds: [&[f64]; P]) -> f64 {
+    let mut worst: f64 = 0.0;
+    for (vs, es) in values.iter().zip(&bounds) {
+        for (v, e) in vs.iter().zip(es.iter()) {
             if *e == 0.0 {
                 continue;
             }
@@ -181,23 +203,14 @@ impl CertifiedSequence {
             };
             worst = worst.max(r);
         }
-        worst
     }
+    worst
+}
 
-    /// True when every result and bound is finite.
-    pub fn is_finite(&self) -> bool {
-        self.coeffs
-            .iter()
-            .chain(&self.adjugates)
-            .chain(&self.numerator)
-            .all(|v| v.is_finite())
-            && self
-                .coeff_bounds
-                .iter()
-                .chain(&self.adjugate_bounds)
-                .chain(&self.numerator_bounds)
-                .all(|v| v.is_finite())
-    }
+/// True when every value and bound is finite.
+pub fn all_finite<const P: usize>(values: [&[f64]; P], bounds: [&[f64]; P]) -> bool {
+    values.iter().all(|vs| vs.iter().all(|v| v.is_finite()))
+        && bounds.iter().all(|es| es.iter().all(|v| v.is_finite()))
 }
 
 /// `out = x · y` for row-major f64 (r×k) times working (k×c); with W = f64 it also

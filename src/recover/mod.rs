@@ -20,6 +20,7 @@
 //! without a check is on offer as `Method::Recursion` for studies of its accuracy.
 
 pub mod certified;
+pub mod certified_lanes;
 pub mod double_double;
 pub mod dyadic;
 pub mod faddeev_leverrier;
@@ -191,24 +192,42 @@ fn fast_path(
         return Ok(Some((seq, unchecked(bound))));
     }
     let seq = certified::certified_double_double(a.as_slice(), n, with_adjugates, model);
-    let worst = seq.worst_relative_bound();
-    // Below 2^-969 the low word of a double-double is subnormal or lost: the relative bound
-    // does not hold there, and the rounding to float64 would not be correct. Such results
-    // go to the exact evaluation, which rounds them once to the subnormal grid.
-    let near_subnormal = seq
-        .coeffs
-        .iter()
-        .chain(&seq.adjugates)
-        .chain(&seq.numerator)
-        .any(|v| *v != 0.0 && v.abs() < DOUBLE_DOUBLE_NORMAL_FLOOR);
-    if seq.is_finite() && worst <= CERTIFIED_TOLERANCE && !near_subnormal {
-        let acc = Accuracy {
-            method: "certified double-double recursion",
-            relative_error_bound: worst + FLOAT_UNIT,
-        };
+    let parts = [&seq.coeffs[..], &seq.adjugates, &seq.numerator];
+    let bounds = [
+        &seq.coeff_bounds[..],
+        &seq.adjugate_bounds,
+        &seq.numerator_bounds,
+    ];
+    if let Some(acc) = certified_accuracy(parts, bounds) {
         return Ok(Some((seq, acc)));
     }
     Ok(None)
+}
+
+/// The acceptance test of the certified double-double results (values and their bounds,
+/// part by part): every value and bound finite, every value certified to
+/// [`CERTIFIED_TOLERANCE`] relative, and none in the near-subnormal range; the accuracy
+/// reported then. One function for the scalar recursion and the batch lanes, so both
+/// accept exactly the same models.
+pub fn certified_accuracy<const P: usize>(
+    values: [&[f64]; P],
+    bounds: [&[f64]; P],
+) -> Option<Accuracy> {
+    let worst = certified::worst_relative_bound_of(values, bounds);
+    // Below 2^-969 the low word of a double-double is subnormal or lost: the relative bound
+    // does not hold there, and the rounding to float64 would not be correct. Such results
+    // go to the exact evaluation, which rounds them once to the subnormal grid.
+    let near_subnormal = values
+        .iter()
+        .flat_map(|vs| vs.iter())
+        .any(|v| *v != 0.0 && v.abs() < DOUBLE_DOUBLE_NORMAL_FLOOR);
+    if certified::all_finite(values, bounds) && worst <= CERTIFIED_TOLERANCE && !near_subnormal {
+        return Some(Accuracy {
+            method: "certified double-double recursion",
+            relative_error_bound: worst + FLOAT_UNIT,
+        });
+    }
+    None
 }
 
 /// Characteristic polynomial `[1, c_1, ..., c_n]` and adjugates `N_0 .. N_{n−1}` of float `a`.

@@ -110,8 +110,9 @@ def realize_batch(
     """
     form = v.check_option(form, "form", FORMS)
     _check_progress(progress)
-    num_a = v.float_stack(num, "num", 2, "(N, k)")
-    den_a = v.float_stack(den, "den", 2, "(N, n + 1)")
+    # The bindings copy their input into owned core buffers: no second copy here.
+    num_a = v.float_stack(num, "num", 2, "(N, k)", copy=False)
+    den_a = v.float_stack(den, "den", 2, "(N, n + 1)", copy=False)
     if progress is not None and num_a.shape[0] == den_a.shape[0]:
         return _in_chunks(_core.realize_batch, (num_a, den_a), (form,), progress)  # type: ignore[return-value]
     return _core.realize_batch(num_a, den_a, form)
@@ -166,7 +167,7 @@ def transfer_function_batch(
     """
     _check_progress(progress)
     mats = [
-        v.float_stack(x, name, 3, shape)
+        v.float_stack(x, name, 3, shape, copy=False)
         for x, name, shape in zip((a, b, c, d), "abcd", ("(N, n, n)", "(N, n, m)", "(N, p, n)", "(N, p, m)"))
     ]
     method = v.check_option(method, "method", METHODS)

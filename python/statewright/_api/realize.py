@@ -5,6 +5,8 @@ from __future__ import annotations
 
 from typing import Any, Optional
 
+import numpy as np
+
 from .. import _core
 from .._base import validate as v
 from .._compute import forms as _forms
@@ -27,6 +29,8 @@ FORMS = (
 # The forms the core realizes from float coefficients alone (no tolerance, no info beyond
 # the modal form's): the ones the plain-list fast path of ``realize`` serves.
 _LIST_FORMS = frozenset(FORMS) - {"jordan"}
+#: Argument types the core reads directly (lists item by item, float64 1-D arrays as they are).
+_FAST_TYPES = frozenset({list, np.ndarray})
 
 
 def realize(
@@ -136,22 +140,21 @@ def realize(
     (['-1/4', '1/2', '1/4'], ['1', '0', '1'])
     """
     if (
-        type(num) is list
-        and type(den) is list
-        and num
-        and den
-        and tol is None
+        tol is None
         and exact is False
         and type(form) is str
         and form in _LIST_FORMS
+        and type(num) in _FAST_TYPES
+        and type(den) in _FAST_TYPES
     ):
-        # Fast path of single calls on plain lists: the core reads the lists itself and
-        # checks finiteness and shape; anything it cannot read as numbers (a TypeError, an
-        # int too large for a float) goes through the full validation below, which names
-        # the argument and the fault.
+        # Fast path of single calls on plain lists and float64 arrays: the core reads them
+        # itself and checks finiteness and shape. On anything it refuses (a TypeError for
+        # what it cannot read as float64 numbers, an int too large for a float, or a
+        # ModelError) the full validation below runs, so every refusal names the argument
+        # and the fault exactly as it would without this path.
         try:
             (a, b, c, d), info = _core.realize_float(num, den, form)
-        except (TypeError, OverflowError):
+        except (TypeError, OverflowError, ModelError):
             pass
         else:
             return Realization._trusted(a, b, c, d, info, frozen=True)

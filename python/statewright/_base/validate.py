@@ -56,9 +56,16 @@ def _float_array(x: Any, arg: str, check_finite: bool = True) -> np.ndarray:
     return arr
 
 
-def float_stack(x: Any, arg: str, ndim: int, shape_text: str) -> np.ndarray:
+def float_stack(x: Any, arg: str, ndim: int, shape_text: str, copy: bool = True) -> np.ndarray:
     """A fresh float64 C-contiguous array of ``ndim`` dimensions, for batches: finiteness is
-    left to the core, which names the index of the model at fault."""
+    left to the core, which names the index of the model at fault.
+
+    With ``copy=False`` a float64 C-contiguous array of ``ndim`` dimensions is passed through
+    as it is: for bindings that copy their input into owned core buffers anyway (one copy of
+    a large batch instead of two).
+    """
+    if not copy and type(x) is np.ndarray and x.dtype == np.float64 and x.ndim == ndim and x.flags.c_contiguous:
+        return x
     arr = _float_array(x, arg, check_finite=False)
     if arr.ndim != ndim:
         raise ModelError(f"{arg}: expected a {ndim}-D array of shape {shape_text}, found shape {arr.shape}")
