@@ -21,6 +21,7 @@ pub mod bilinear;
 pub mod conversion;
 pub mod exponential;
 pub mod first_order_hold;
+mod frequency_lanes;
 pub mod frequency_response;
 pub mod impulse_invariant;
 pub mod logarithm;
