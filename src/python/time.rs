@@ -20,14 +20,6 @@ fn parse_method(method: &str) -> PyResult<DiscretizationMethod> {
     method.parse().map_err(to_py)
 }
 
-fn info_dict<'py>(py: Python<'py>, info: &[(&'static str, f64)]) -> PyResult<Bound<'py, PyDict>> {
-    let d = PyDict::new(py);
-    for (k, v) in info {
-        d.set_item(*k, *v)?;
-    }
-    Ok(d)
-}
-
 fn complex_array<'py>(
     py: Python<'py>,
     data: Vec<Complex64>,
@@ -50,6 +42,7 @@ pub(crate) fn convert_time_base<'py>(
     prewarp_frequency: Option<f64>,
     forward: bool,
 ) -> PyResult<Converted<'py>> {
+    let name = method;
     let method = parse_method(method)?;
     let ss = model_from(&model)?;
     let convert = move || {
@@ -64,7 +57,22 @@ pub(crate) fn convert_time_base<'py>(
     } else {
         run(py, convert)?
     };
-    Ok((quad(py, r.realization, true)?, info_dict(py, &r.info)?))
+    // The whole `.info` of the result, in its documented order: method, sample time, the
+    // figures (counts as ints), the prewarp frequency when given.
+    let info = PyDict::new(py);
+    info.set_item("method", name)?;
+    info.set_item("sample_time", sample_time)?;
+    for (k, v) in &r.info {
+        if matches!(*k, "pade_degree" | "squarings" | "square_roots") {
+            info.set_item(*k, *v as i64)?;
+        } else {
+            info.set_item(*k, *v)?;
+        }
+    }
+    if let Some(w) = prewarp_frequency {
+        info.set_item("prewarp_frequency", w)?;
+    }
+    Ok((quad(py, r.realization, true)?, info))
 }
 
 fn exact_time(t: (BigInt, BigInt)) -> PyResult<BigRational> {

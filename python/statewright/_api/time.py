@@ -5,6 +5,7 @@ results."""
 
 from __future__ import annotations
 
+import math
 from typing import Any, Optional, Tuple
 
 import numpy as np
@@ -26,9 +27,24 @@ __all__ = [
 Arrays4 = Tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]
 
 
+_FLOAT_METHODS = frozenset(tb.METHODS)
+
+
 def _convert(
     a: Any, b: Any, c: Any, d: Any, sample_time: Any, method: str, prewarp_frequency: Any, exact: Any, forward: bool
 ) -> Realization:
+    if (
+        exact is False
+        and prewarp_frequency is None
+        and type(sample_time) is float
+        and 0.0 < sample_time < math.inf
+        and type(method) is str
+        and method in _FLOAT_METHODS
+    ):
+        # Fast path for the common call (valid float sample time and method name, no
+        # options): the checks below would pass unchanged; the model is checked as always.
+        out, info = compute.convert(v.float_model_for_core(a, b, c, d), sample_time, method, None, forward)
+        return Realization._trusted(*out, info, frozen=True, sample_time=sample_time if forward else None, owned=True)
     exact = v.check_flag(exact, "exact")
     method = tb.method(method, exact)
     prewarp = tb.prewarp_frequency(prewarp_frequency, exact)
@@ -43,7 +59,7 @@ def _convert(
     model = v.float_model_for_core(a, b, c, d)
     seconds = tb.sample_time(sample_time)
     out, info = compute.convert(model, seconds, method, prewarp, forward)
-    return Realization._trusted(*out, info, frozen=True, sample_time=seconds if forward else None)
+    return Realization._trusted(*out, info, frozen=True, sample_time=seconds if forward else None, owned=True)
 
 
 def to_discrete(
