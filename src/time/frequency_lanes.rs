@@ -19,7 +19,8 @@
 //! of U, z or y is kept. The lanes of one block run the same instructions (the pivot
 //! choice is a per-lane select), so the compiler vectorizes over frequencies; every lane
 //! depends only on its own frequency, so a result does not depend on the block it was
-//! computed in, on the thread or on the instruction set (no fused multiply-adds).
+//! computed in, on the thread or on the instruction set (the fused multiply-adds are
+//! correctly rounded on every path: AVX2 + FMA, AVX-512F, or `f64::mul_add` elsewhere).
 //!
 //! # Numerical aspects
 //! The same elimination as the scalar one (partial pivoting on a Hessenberg matrix, growth
@@ -42,8 +43,8 @@ pub(super) const MAX_LANES: usize = 8;
 type Lane = [f64; MAX_LANES];
 
 /// A vector of `W` doubles, one lane per frequency, and its lane-wise operations. Every
-/// operation is the IEEE one of each lane (no fused multiply-add), so all implementations
-/// give the same bits.
+/// operation is the correctly rounded IEEE one of each lane (fused multiply-adds rounded
+/// once), so all implementations give the same bits.
 trait Lanes: Copy + Add<Output = Self> + Sub<Output = Self> + Mul<Output = Self> {
     const W: usize;
     type Mask: Copy;
@@ -51,6 +52,10 @@ trait Lanes: Copy + Add<Output = Self> + Sub<Output = Self> + Mul<Output = Self>
     fn load(p: &Lane) -> Self;
     fn store(self, p: &mut Lane);
     fn div(self, o: Self) -> Self;
+    /// `self · b + c`, rounded once.
+    fn mul_add(self, b: Self, c: Self) -> Self;
+    /// `c − self · b`, rounded once.
+    fn neg_mul_add(self, b: Self, c: Self) -> Self;
     fn sqrt(self) -> Self;
     fn abs(self) -> Self;
     fn max(self, o: Self) -> Self;
@@ -81,6 +86,14 @@ impl Lanes for f64 {
     #[inline(always)]
     fn div(self, o: Self) -> Self {
         self / o
+    }
+    #[inline(always)]
+    fn mul_add(self, b: Self, c: Self) -> Self {
+        f64::mul_add(self, b, c)
+    }
+    #[inline(always)]
+    fn neg_mul_add(self, b: Self, c: Self) -> Self {
+        f64::mul_add(-self, b, c)
     }
     #[inline(always)]
     fn sqrt(self) -> Self {
@@ -126,7 +139,7 @@ impl Lanes for f64 {
 
 #[cfg(target_arch = "x86_64")]
 mod x86 {
-    //! AVX2 (4 lanes) and AVX-512F (8 lanes) vectors. Values of these types are made only
+    //! AVX2 with FMA (4 lanes) and AVX-512F (8 lanes) vectors. Values of these types are made only
     //! inside functions compiled for, and called after detecting, the instruction set.
     use super::{Lane, Lanes};
     use std::arch::x86_64::*;
@@ -190,6 +203,14 @@ mod x86 {
             V4(unsafe { _mm256_div_pd(self.0, o.0) })
         }
         #[inline(always)]
+        fn mul_add(self, b: Self, c: Self) -> Self {
+            V4(unsafe { _mm256_fmadd_pd(self.0, b.0, c.0) })
+        }
+        #[inline(always)]
+        fn neg_mul_add(self, b: Self, c: Self) -> Self {
+            V4(unsafe { _mm256_fnmadd_pd(self.0, b.0, c.0) })
+        }
+        #[inline(always)]
         fn sqrt(self) -> Self {
             V4(unsafe { _mm256_sqrt_pd(self.0) })
         }
@@ -237,6 +258,14 @@ mod x86 {
         #[inline(always)]
         fn div(self, o: Self) -> Self {
             V8(unsafe { _mm512_div_pd(self.0, o.0) })
+        }
+        #[inline(always)]
+        fn mul_add(self, b: Self, c: Self) -> Self {
+            V8(unsafe { _mm512_fmadd_pd(self.0, b.0, c.0) })
+        }
+        #[inline(always)]
+        fn neg_mul_add(self, b: Self, c: Self) -> Self {
+            V8(unsafe { _mm512_fnmadd_pd(self.0, b.0, c.0) })
         }
         #[inline(always)]
         fn sqrt(self) -> Self {
@@ -319,7 +348,8 @@ pub(super) fn lanes() -> usize {
         if std::arch::is_x86_feature_detected!("avx512f") {
             return <x86::V8 as Lanes>::W;
         }
-        if std::arch::is_x86_feature_detected!("avx2") {
+        if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma")
+        {
             return <x86::V4 as Lanes>::W;
         }
     }
@@ -342,8 +372,9 @@ pub(super) fn solve_block(
             // SAFETY: the CPU supports AVX-512F (checked just above).
             return unsafe { solve_avx512(model, s_re, s_im, tol, w) };
         }
-        if std::arch::is_x86_feature_detected!("avx2") {
-            // SAFETY: the CPU supports AVX2 (checked just above).
+        if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma")
+        {
+            // SAFETY: the CPU supports AVX2 and FMA (checked just above).
             return unsafe { solve_avx2(model, s_re, s_im, tol, w) };
         }
     }
@@ -363,7 +394,7 @@ unsafe fn solve_avx512(
 }
 
 #[cfg(target_arch = "x86_64")]
-#[target_feature(enable = "avx2")]
+#[target_feature(enable = "avx2,fma")]
 unsafe fn solve_avx2(
     model: &LaneModel<'_>,
     s_re: &Lane,
@@ -374,10 +405,13 @@ unsafe fn solve_avx2(
     solve::<x86::V4>(model, s_re, s_im, tol, w)
 }
 
-/// `o − l · x` for complex lanes.
+/// `o − l · x` for complex lanes (two fused multiply-adds per part).
 #[inline(always)]
 fn minus_product<V: Lanes>(or: V, oi: V, lr: V, li: V, xr: V, xi: V) -> (V, V) {
-    (or - (lr * xr - li * xi), oi - (lr * xi + li * xr))
+    (
+        li.mul_add(xi, lr.neg_mul_add(xr, or)),
+        li.neg_mul_add(xr, lr.neg_mul_add(xi, oi)),
+    )
 }
 
 #[inline(always)]
@@ -453,8 +487,9 @@ fn solve<V: Lanes>(
                 let (zr, zi) = (V::load(&w.z_re[q]), V::load(&w.z_im[q]));
                 let at = q * m + r;
                 let (gr, gi) = (V::load(&w.g_re[at]), V::load(&w.g_im[at]));
-                (gr + (zr * yr - zi * yi)).store(&mut w.g_re[at]);
-                (gi + (zr * yi + zi * yr)).store(&mut w.g_im[at]);
+                zr.mul_add(yr, zi.neg_mul_add(yi, gr))
+                    .store(&mut w.g_re[at]);
+                zr.mul_add(yi, zi.mul_add(yr, gi)).store(&mut w.g_im[at]);
             }
         }
         if last {
@@ -498,4 +533,88 @@ fn solve<V: Lanes>(
     let mut flags = [0.0; MAX_LANES];
     failed.store(&mut flags);
     flags.map(|f| f != 0.0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_instruction_set_gives_the_same_bits() {
+        // The scalar path against the AVX2 and AVX-512 ones where the CPU has them
+        // (identity: the same correctly rounded operations per lane).
+        let (n, m, p): (usize, usize, usize) = (9, 2, 2);
+        let mut seed = 3u64;
+        let mut next = || {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            ((seed >> 11) as f64 / (1u64 << 53) as f64) - 0.5
+        };
+        let mut h: Vec<f64> = (0..n * n).map(|_| next()).collect();
+        for i in 0..n {
+            for j in 0..i.saturating_sub(1) {
+                h[i * n + j] = 0.0;
+            }
+        }
+        let b: Vec<f64> = (0..n * m).map(|_| next()).collect();
+        let c: Vec<f64> = (0..p * n).map(|_| next()).collect();
+        let model = LaneModel {
+            n,
+            m,
+            p,
+            h: &h,
+            b: &b,
+            c: &c,
+        };
+        let s_im: Lane = [0.0, 0.1, 0.3, 1.0, 2.0, 5.0, 20.0, 1e3];
+        let s_re: Lane = [0.0; MAX_LANES];
+        let tol = [1e-14; MAX_LANES];
+        let mut reference = LaneWork::new(n, m, p);
+        for l in 0..MAX_LANES {
+            let one = |x: &Lane| {
+                let mut y = [0.0; MAX_LANES];
+                y[0] = x[l];
+                y
+            };
+            let mut w = LaneWork::new(n, m, p);
+            let failed = solve::<f64>(&model, &one(&s_re), &one(&s_im), &one(&tol), &mut w);
+            assert!(!failed[0]);
+            for (r, g) in reference.g_re.iter_mut().zip(&w.g_re) {
+                r[l] = g[0];
+            }
+            for (r, g) in reference.g_im.iter_mut().zip(&w.g_im) {
+                r[l] = g[0];
+            }
+        }
+        #[cfg(target_arch = "x86_64")]
+        {
+            let mut w = LaneWork::new(n, m, p);
+            if std::arch::is_x86_feature_detected!("avx512f") {
+                // SAFETY: the CPU supports AVX-512F (checked just above).
+                unsafe { solve_avx512(&model, &s_re, &s_im, &tol, &mut w) };
+                assert_eq!((&w.g_re, &w.g_im), (&reference.g_re, &reference.g_im));
+            }
+            if std::arch::is_x86_feature_detected!("avx2")
+                && std::arch::is_x86_feature_detected!("fma")
+            {
+                let mut w = LaneWork::new(n, m, p);
+                for half in 0..2 {
+                    let part = |x: &Lane| {
+                        let mut y = [0.0; MAX_LANES];
+                        y[..4].copy_from_slice(&x[half * 4..half * 4 + 4]);
+                        y
+                    };
+                    // SAFETY: the CPU supports AVX2 and FMA (checked just above).
+                    unsafe { solve_avx2(&model, &part(&s_re), &part(&s_im), &part(&tol), &mut w) };
+                    for (r, g) in reference.g_re.iter().zip(&w.g_re) {
+                        assert_eq!(r[half * 4..half * 4 + 4], g[..4]);
+                    }
+                    for (r, g) in reference.g_im.iter().zip(&w.g_im) {
+                        assert_eq!(r[half * 4..half * 4 + 4], g[..4]);
+                    }
+                }
+            }
+        }
+    }
 }
