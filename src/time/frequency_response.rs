@@ -8,45 +8,37 @@
 //! orders.
 //!
 //! # Method
-//! Laub (1981): once, the orthogonal Hessenberg reduction `A = Q H Qᵀ` (Householder
-//! reflections, nalgebra), `B̃ = Qᵀ B`, `C̃ = C Q`, so that `G(s) = C̃ (sI − H)⁻¹ B̃ + D`;
-//! then per frequency Gaussian elimination with partial pivoting on the upper Hessenberg
-//! `sI − H` (one row operation per column, O(n²) complex operations instead of O(n³)),
-//! back substitution for the m columns of B̃ and the product with C̃. The complex rows are
-//! held as separate real and imaginary parts so that the row operations vectorize; the
-//! frequencies are spread over the rayon thread pool when the work is large enough.
-//!
-//! With k ≥ 3n frequencies the Hessenberg matrix is carried on to the real Schur form
-//! `A = Q T Qᵀ` (Francis double-shift QR iteration, nalgebra; T quasi-triangular, itself
-//! an upper Hessenberg matrix). Its Hessenberg solve needs no elimination outside the
-//! 2×2 blocks of complex pairs: back substitution row by row with the *real* T times the
-//! complex solution (two real dot products per row, n² real multiply-adds per input
-//! column instead of about 4n² for elimination and substitution in complex arithmetic)
-//! and one 2×2 complex solve with partial pivoting per pair. The extra O(n³) of the QR
-//! iteration is paid back after about 3n frequencies (measured at n = 20, 50 and 100: the
-//! QR iteration costs about six times the Hessenberg reduction, the solve per frequency
-//! about a quarter of the general one). When the iteration does not converge in 30n
-//! sweeps, or T is not quasi-triangular, the general Hessenberg solve is used on the
-//! Hessenberg form.
+//! Laub (1981): once, the orthogonal Hessenberg reduction `A = Q H Qᵀ` (blocked Householder
+//! reflections, faer), `B̃ = Qᵀ B`, `C̃ = C Q`, so that `G(s) = C̃ (sI − H)⁻¹ B̃ + D`; then
+//! per frequency Gaussian elimination with partial pivoting on the upper Hessenberg
+//! `sI − H` (one row operation per column, O(n²) complex operations instead of O(n³)).
+//! The triangular factor is never stored: the right-hand sides are eliminated with the
+//! rows, and `C̃ U⁻¹` is built forward, column by column, as the rows of U appear
+//! ([`super::frequency_lanes`]), so `G` comes out of the one sweep. The frequencies are
+//! solved 4 or 8 at a time, one per SIMD lane (AVX2 + FMA or AVX-512F, chosen at run
+//! time; plain code elsewhere, same bits), and spread over the rayon thread pool when the
+//! work is large enough. When the model has more outputs than inputs the dual
+//! `(Aᵀ, Cᵀ, Bᵀ, Dᵀ)` is reduced instead (G of the dual is Gᵀ), so the cost per frequency
+//! is about `4 n² (1 + min(m, p))` flops. (A real Schur form would make each solve
+//! cheaper, but its QR iteration costs several milliseconds at n = 100, more than 1,000
+//! frequencies of these solves.)
 //!
 //! # Numerical aspects
 //! Backward stable: the Hessenberg reduction is orthogonal, and Gaussian elimination with
 //! partial pivoting on a Hessenberg matrix has growth factor at most n (Wilkinson), so the
 //! computed response is exact for a model within a small multiple of `n eps ‖A‖` of the
-//! given one; the real Schur form is orthogonal as well and the substitution on a
-//! triangular matrix (with 2×2 pivoted blocks) is backward stable, so the same bound holds
-//! there. Near a pole the relative accuracy falls like `κ(sI − A) eps`. A frequency is
-//! refused as lying at a pole when a pivot of the elimination is at or below
-//! `n eps (‖H‖₁ + |s|)` (`‖T‖₁` on the Schur route; sI − A singular to working precision) or when the response
-//! overflows; the error names the frequency's index and value. Cost O(n³) once, then
-//! O(n² (1 + m) + n p m) per frequency.
+//! given one; the forward substitution that builds `C̃ U⁻¹` is backward stable like the back
+//! substitution it replaces. Near a pole the relative accuracy falls like
+//! `κ(sI − A) eps`. A frequency is refused as lying at a pole when a pivot's modulus is at
+//! or below `n eps (‖H‖₁ + |s|)` (sI − A singular to working precision) or when the
+//! response overflows; the error names the frequency's index and value. Cost O(n³) once,
+//! then O(n² (1 + min(m, p)) + n m p) per frequency.
 //!
 //! # References
 //! A. J. Laub, "Efficient multivariable frequency response computations", IEEE Trans.
 //! Automat. Control 26 (1981) 407–408. J. H. Wilkinson, *The Algebraic Eigenvalue
 //! Problem*, 1965 (growth in Hessenberg elimination). G. H. Golub and C. F. Van Loan,
-//! *Matrix Computations*, 4th ed., sec. 7.4 (the Hessenberg reduction), sec. 7.5 (the
-//! real Schur form by the Francis QR step).
+//! *Matrix Computations*, 4th ed., sec. 7.4 (the Hessenberg reduction).
 //!
 //! # Errors
 //! `Shape` / `NonFinite` for the model or the frequencies; `BadValue` on `sample_time`
