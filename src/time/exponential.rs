@@ -229,7 +229,7 @@ impl<const N: usize> Small<N> {
         x
     }
 
-    fn to_na(&self) -> DMatrix<f64> {
+    fn to_na(self) -> DMatrix<f64> {
         DMatrix::from_fn(N, N, |i, j| self.v[i][j])
     }
 

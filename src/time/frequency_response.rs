@@ -506,7 +506,7 @@ mod tests {
             }
             a[i * n + i] -= 1.0 + i as f64;
         }
-        a[n + 0] = 1e-9;
+        a[n] = 1e-9; // entry (1, 0)
         a[3 * n + 2] = 1e3;
         let b: Vec<f64> = (0..n).map(|i| 1.0 + i as f64).collect();
         let c: Vec<f64> = (0..n).map(|i| (i as f64 - 2.5) / 3.0).collect();
