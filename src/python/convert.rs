@@ -9,7 +9,8 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
 use numpy::{
-    ndarray, PyArray, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3, PyUntypedArrayMethods,
+    ndarray, PyArray, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
+    PyUntypedArrayMethods,
 };
 use pyo3::prelude::*;
 
@@ -71,11 +72,19 @@ pub(crate) fn array_nd<'py>(
 /// As [`array2`], marked read-only (the arrays of a frozen Realization).
 pub(crate) fn frozen2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {
     let shape = [m.rows(), m.cols()];
-    let owned = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(&shape), m.into_vec())
-        .map_err(|e| ModelError::new_err(format!("internal error: result shape ({e})")))?;
-    let arr = PyArray::from_owned_array(py, owned);
-    // SAFETY: the array was created just above and is not shared yet; clearing the
-    // WRITEABLE flag is what numpy's own `setflags(write=False)` does.
+    // A numpy-allocated C-contiguous array filled from the matrix: one Python object (no
+    // container object for a Rust-owned buffer), the cheaper route for small results.
+    // SAFETY: `new` leaves the array uninitialized; every entry is written just below,
+    // before the array is handed out.
+    let arr = unsafe { PyArray::<f64, ndarray::Ix2>::new(py, shape, false) };
+    // SAFETY: the array was created just above, is C-contiguous and not shared yet.
+    unsafe {
+        arr.as_slice_mut()
+            .map_err(|e| ModelError::new_err(format!("internal error: result array ({e})")))?
+            .copy_from_slice(m.as_slice());
+    }
+    // SAFETY: as above; clearing the WRITEABLE flag is what numpy's own
+    // `setflags(write=False)` does.
     unsafe {
         (*arr.as_array_ptr()).fields.flags &= !numpy::npyffi::NPY_ARRAY_WRITEABLE;
     }

@@ -13,6 +13,7 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
 use numpy::{ndarray, Complex64, PyArray, PyReadonlyArray1, PyReadonlyArray3};
+use pyo3::intern;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
@@ -60,17 +61,18 @@ pub(crate) fn convert_time_base<'py>(
     // The whole `.info` of the result, in its documented order: method, sample time, the
     // figures (counts as ints), the prewarp frequency when given.
     let info = PyDict::new(py);
-    info.set_item("method", name)?;
-    info.set_item("sample_time", sample_time)?;
+    info.set_item(intern!(py, "method"), name)?;
+    info.set_item(intern!(py, "sample_time"), sample_time)?;
     for (k, v) in &r.info {
-        if matches!(*k, "pade_degree" | "squarings" | "square_roots") {
-            info.set_item(*k, *v as i64)?;
-        } else {
-            info.set_item(*k, *v)?;
+        match *k {
+            "pade_degree" => info.set_item(intern!(py, "pade_degree"), *v as i64)?,
+            "squarings" => info.set_item(intern!(py, "squarings"), *v as i64)?,
+            "square_roots" => info.set_item(intern!(py, "square_roots"), *v as i64)?,
+            _ => info.set_item(*k, *v)?,
         }
     }
     if let Some(w) = prewarp_frequency {
-        info.set_item("prewarp_frequency", w)?;
+        info.set_item(intern!(py, "prewarp_frequency"), w)?;
     }
     Ok((quad(py, r.realization, true)?, info))
 }

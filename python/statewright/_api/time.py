@@ -33,18 +33,6 @@ _FLOAT_METHODS = frozenset(tb.METHODS)
 def _convert(
     a: Any, b: Any, c: Any, d: Any, sample_time: Any, method: str, prewarp_frequency: Any, exact: Any, forward: bool
 ) -> Realization:
-    if (
-        exact is False
-        and prewarp_frequency is None
-        and type(sample_time) is float
-        and 0.0 < sample_time < math.inf
-        and type(method) is str
-        and method in _FLOAT_METHODS
-    ):
-        # Fast path for the common call (valid float sample time and method name, no
-        # options): the checks below would pass unchanged; the model is checked as always.
-        out, info = compute.convert(v.float_model_for_core(a, b, c, d), sample_time, method, None, forward)
-        return Realization._trusted(*out, info, frozen=True, sample_time=sample_time if forward else None, owned=True)
     exact = v.check_flag(exact, "exact")
     method = tb.method(method, exact)
     prewarp = tb.prewarp_frequency(prewarp_frequency, exact)
@@ -138,6 +126,19 @@ def to_discrete(
     >>> r.sample_time
     0.5
     """
+    if (
+        exact is False
+        and prewarp_frequency is None
+        and type(sample_time) is float
+        and 0.0 < sample_time < math.inf
+        and type(method) is str
+        and method in _FLOAT_METHODS
+    ):
+        # Fast path for the common call (a float sample time, a known method name, no
+        # options): the checks of _convert would pass unchanged; the model is checked as
+        # always, by the same function.
+        out, info = compute.convert(v.float_model_for_core(a, b, c, d), sample_time, method, None, True)
+        return Realization._trusted(*out, info, frozen=True, sample_time=sample_time, owned=True)
     return _convert(a, b, c, d, sample_time, method, prewarp_frequency, exact, True)
 
 
