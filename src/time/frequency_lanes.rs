@@ -414,6 +414,68 @@ fn minus_product<V: Lanes>(or: V, oi: V, lr: V, li: V, xr: V, xi: V) -> (V, V) {
     )
 }
 
+/// Step k's pivot: the row choice, the modulus test (into `failed`), the reciprocal and
+/// the multiplier; `z_q[k]` into `w.z_*`; the right-hand sides and `G += z y`. Returns the
+/// swap mask and the multiplier.
+#[inline(always)]
+fn pivot_step<V: Lanes>(
+    model: &LaneModel<'_>,
+    k: usize,
+    tl: V,
+    failed: &mut V,
+    w: &mut LaneWork,
+) -> (V::Mask, V, V) {
+    let LaneModel { n, m, p, h, b, .. } = *model;
+    let zero = V::splat(0.0);
+    let one = V::splat(1.0);
+    let last = k + 1 == n;
+    let (cr, ci) = (V::load(&w.cur_re[k]), V::load(&w.cur_im[k]));
+    // The pivot (sw: row k + 1 of sI − H) and the other row's entry at column k.
+    let sub = V::splat(if last { 0.0 } else { -h[(k + 1) * n + k] });
+    let sw = if last {
+        zero.gt(zero)
+    } else {
+        sub.abs().gt(cr.abs() + ci.abs())
+    };
+    let (pr, pi) = (V::select(sw, sub, cr), V::select(sw, zero, ci));
+    let (or, oi) = (V::select(sw, cr, sub), V::select(sw, ci, zero));
+    // |pivot| and 1 / pivot, scaled.
+    let (ar, ai) = (pr.abs(), pi.abs());
+    let (big, small) = (ar.max(ai), ar.min(ai));
+    let ratio = V::select(big.gt(zero), small.div(big), zero);
+    let modulus = big * (one + ratio * ratio).sqrt();
+    *failed = V::select(modulus.le(tl), one, *failed);
+    let (qr, qi) = (pr.div(big), pi.div(big));
+    let d = (qr * qr + qi * qi) * big;
+    let (ir, ii) = (qr.div(d), zero - qi.div(d));
+    let (lr, li) = (or * ir - oi * ii, or * ii + oi * ir);
+    // z_q[k] = acc_q[k] / pivot.
+    for q in 0..p {
+        let (xr, xi) = (V::load(&w.acc_re[q * n + k]), V::load(&w.acc_im[q * n + k]));
+        (xr * ir - xi * ii).store(&mut w.z_re[q]);
+        (xr * ii + xi * ir).store(&mut w.z_im[q]);
+    }
+    // y_r[k], the next right-hand sides, G += z y.
+    for r in 0..m {
+        let next = V::splat(if last { 0.0 } else { b[r * n + k + 1] });
+        let (rr, ri) = (V::load(&w.rhs_re[r]), V::load(&w.rhs_im[r]));
+        let (yr, yi) = (V::select(sw, next, rr), V::select(sw, zero, ri));
+        let (orr, ori) = (V::select(sw, rr, next), V::select(sw, ri, zero));
+        let (nr, ni) = minus_product(orr, ori, lr, li, yr, yi);
+        nr.store(&mut w.rhs_re[r]);
+        ni.store(&mut w.rhs_im[r]);
+        for q in 0..p {
+            let (zr, zi) = (V::load(&w.z_re[q]), V::load(&w.z_im[q]));
+            let at = q * m + r;
+            let (gr, gi) = (V::load(&w.g_re[at]), V::load(&w.g_im[at]));
+            zr.mul_add(yr, zi.neg_mul_add(yi, gr))
+                .store(&mut w.g_re[at]);
+            zr.mul_add(yi, zi.mul_add(yr, gi)).store(&mut w.g_im[at]);
+        }
+    }
+    (sw, lr, li)
+}
+
 #[inline(always)]
 fn solve<V: Lanes>(
     model: &LaneModel<'_>,
@@ -424,7 +486,6 @@ fn solve<V: Lanes>(
 ) -> [bool; MAX_LANES] {
     let LaneModel { n, m, p, h, b, c } = *model;
     let zero = V::splat(0.0);
-    let one = V::splat(1.0);
     let (sr, si, tl) = (V::load(s_re), V::load(s_im), V::load(tol));
     let mut failed = zero;
     for g in w.g_re.iter_mut().chain(w.g_im.iter_mut()) {
@@ -446,56 +507,66 @@ fn solve<V: Lanes>(
             zero.store(&mut w.rhs_im[r]);
         }
     }
-    for k in 0..n {
-        let last = k + 1 == n;
-        let (cr, ci) = (V::load(&w.cur_re[k]), V::load(&w.cur_im[k]));
-        // The pivot (sw: row k + 1 of sI − H) and the other row's entry at column k.
-        let sub = V::splat(if last { 0.0 } else { -h[(k + 1) * n + k] });
-        let sw = if last {
-            zero.gt(zero)
-        } else {
-            sub.abs().gt(cr.abs() + ci.abs())
-        };
-        let (pr, pi) = (V::select(sw, sub, cr), V::select(sw, zero, ci));
-        let (or, oi) = (V::select(sw, cr, sub), V::select(sw, ci, zero));
-        // |pivot| and 1 / pivot, scaled.
-        let (ar, ai) = (pr.abs(), pi.abs());
-        let (big, small) = (ar.max(ai), ar.min(ai));
-        let ratio = V::select(big.gt(zero), small.div(big), zero);
-        let modulus = big * (one + ratio * ratio).sqrt();
-        failed = V::select(modulus.le(tl), one, failed);
-        let (qr, qi) = (pr.div(big), pi.div(big));
-        let d = (qr * qr + qi * qi) * big;
-        let (ir, ii) = (qr.div(d), zero - qi.div(d));
-        let (lr, li) = (or * ir - oi * ii, or * ii + oi * ir);
-        // z_q[k] = acc_q[k] / pivot.
-        for q in 0..p {
-            let (xr, xi) = (V::load(&w.acc_re[q * n + k]), V::load(&w.acc_im[q * n + k]));
-            (xr * ir - xi * ii).store(&mut w.z_re[q]);
-            (xr * ii + xi * ir).store(&mut w.z_im[q]);
-        }
-        // y_r[k], the next right-hand sides, G += z y.
-        for r in 0..m {
-            let next = V::splat(if last { 0.0 } else { b[r * n + k + 1] });
-            let (rr, ri) = (V::load(&w.rhs_re[r]), V::load(&w.rhs_im[r]));
-            let (yr, yi) = (V::select(sw, next, rr), V::select(sw, zero, ri));
-            let (orr, ori) = (V::select(sw, rr, next), V::select(sw, ri, zero));
-            let (nr, ni) = minus_product(orr, ori, lr, li, yr, yi);
-            nr.store(&mut w.rhs_re[r]);
-            ni.store(&mut w.rhs_im[r]);
-            for q in 0..p {
-                let (zr, zi) = (V::load(&w.z_re[q]), V::load(&w.z_im[q]));
-                let at = q * m + r;
-                let (gr, gi) = (V::load(&w.g_re[at]), V::load(&w.g_im[at]));
-                zr.mul_add(yr, zi.neg_mul_add(yi, gr))
-                    .store(&mut w.g_re[at]);
-                zr.mul_add(yi, zi.mul_add(yr, gi)).store(&mut w.g_im[at]);
-            }
-        }
-        if last {
+    let mut k = 0;
+    while k < n {
+        let (sw, lr, li) = pivot_step(model, k, tl, &mut failed, w);
+        if k + 1 == n {
             break;
         }
         let row = &h[(k + 1) * n + k + 1..(k + 2) * n];
+        if p == 1 && k + 2 < n {
+            // Steps k and k + 1 in one pass over the columns (the SISO case): column
+            // k + 1 for step k, the pivot of step k + 1, then both row operations per
+            // column with the values held in registers. Each value sees the same
+            // operations in the same order as in two separate passes.
+            let (zr, zi) = (V::load(&w.z_re[0]), V::load(&w.z_im[0]));
+            {
+                let (cr, ci) = (V::load(&w.cur_re[k + 1]), V::load(&w.cur_im[k + 1]));
+                let (xr, xi) = (V::splat(-row[0]) + sr, si);
+                let (er, ei) = (V::select(sw, xr, cr), V::select(sw, xi, ci));
+                let (fr, fi) = (V::select(sw, cr, xr), V::select(sw, ci, xi));
+                let (ar, ai) = (V::load(&w.acc_re[k + 1]), V::load(&w.acc_im[k + 1]));
+                let (nr, ni) = minus_product(ar, ai, zr, zi, er, ei);
+                nr.store(&mut w.acc_re[k + 1]);
+                ni.store(&mut w.acc_im[k + 1]);
+                let (nr, ni) = minus_product(fr, fi, lr, li, er, ei);
+                nr.store(&mut w.cur_re[k + 1]);
+                ni.store(&mut w.cur_im[k + 1]);
+            }
+            let (sw2, lr2, li2) = pivot_step(model, k + 1, tl, &mut failed, w);
+            let (zr2, zi2) = (V::load(&w.z_re[0]), V::load(&w.z_im[0]));
+            let row2 = &h[(k + 2) * n + k + 2..(k + 3) * n];
+            let columns = row[1..]
+                .iter()
+                .zip(row2)
+                .zip(w.cur_re[k + 2..n].iter_mut().zip(&mut w.cur_im[k + 2..n]))
+                .zip(w.acc_re[k + 2..n].iter_mut().zip(&mut w.acc_im[k + 2..n]));
+            for (j, (((&h1, &h2), (cre, cim)), (are, aim))) in columns.enumerate() {
+                let (cr, ci) = (V::load(cre), V::load(cim));
+                // Step k: row k + 1 of sI − H is real here.
+                let x = V::splat(-h1);
+                let (er, ei) = (V::select(sw, x, cr), V::select(sw, zero, ci));
+                let (fr, fi) = (V::select(sw, cr, x), V::select(sw, ci, zero));
+                let (ar, ai) = minus_product(V::load(are), V::load(aim), zr, zi, er, ei);
+                let (cr, ci) = minus_product(fr, fi, lr, li, er, ei);
+                // Step k + 1: row k + 2 of sI − H, complex on its diagonal (j = 0).
+                let (xr, xi) = if j == 0 {
+                    (V::splat(-h2) + sr, si)
+                } else {
+                    (V::splat(-h2), zero)
+                };
+                let (er, ei) = (V::select(sw2, xr, cr), V::select(sw2, xi, ci));
+                let (fr, fi) = (V::select(sw2, cr, xr), V::select(sw2, ci, xi));
+                let (ar, ai) = minus_product(ar, ai, zr2, zi2, er, ei);
+                ar.store(are);
+                ai.store(aim);
+                let (cr, ci) = minus_product(fr, fi, lr2, li2, er, ei);
+                cr.store(cre);
+                ci.store(cim);
+            }
+            k += 2;
+            continue;
+        }
         // Output by output; the rows are eliminated in the last pass, after every
         // accumulator has taken the pivot row.
         for q in 0..p {
@@ -529,6 +600,7 @@ fn solve<V: Lanes>(
                 }
             }
         }
+        k += 1;
     }
     let mut flags = [0.0; MAX_LANES];
     failed.store(&mut flags);
