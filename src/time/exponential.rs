@@ -21,7 +21,7 @@
 //! radius (non-normal A, "overscaling"); callers that exponentiate block matrices balance
 //! the off-diagonal block by a power of two first (exact). The scaling by 2^s is exact.
 //! Cost: (π_m + s) matrix products and one LU solve, π₁₃ = 6. Matrices of order at most
-//! [`SMALL`] (the block matrices of small models) take a path without heap allocation:
+//! `SMALL` = 10 (the block matrices of small models) take a path without heap allocation:
 //! the same degrees, scaling, formulas and pivoting on fixed-size arrays.
 //!
 //! # References

@@ -1,6 +1,7 @@
 //! The per-frequency solve of [`super::frequency_response`]: Gaussian elimination with
-//! partial pivoting on `sI − H` (H upper Hessenberg) for [`LANES`] frequencies at once,
-//! one frequency per SIMD lane, with the output map applied while the rows are produced.
+//! partial pivoting on `sI − H` (H upper Hessenberg) for 8 (AVX-512F), 4 (AVX2 + FMA) or
+//! 1 frequencies at once, one per SIMD lane, with the output map applied while the rows
+//! are produced.
 //!
 //! # Purpose
 //! `G(s) = C̃ (sI − H)⁻¹ B̃ + D` at many points s in O(n² (1 + p)) real operations per
@@ -16,11 +17,13 @@
 //! row vectors `z_qᵀ = c̃_qᵀ U⁻¹` are built forward by columns: when row k of U is final,
 //! `z_q[k] = acc_q[k] / U[k, k]` and `acc_q[j] −= z_q[k] U[k, j]` for j > k (accumulators
 //! started at c̃_q). Then `G[q, r] = Σ_k z_q[k] y_r[k]`, summed as the steps run: no array
-//! of U, z or y is kept. The lanes of one block run the same instructions (the pivot
-//! choice is a per-lane select), so the compiler vectorizes over frequencies; every lane
-//! depends only on its own frequency, so a result does not depend on the block it was
-//! computed in, on the thread or on the instruction set (the fused multiply-adds are
-//! correctly rounded on every path: AVX2 + FMA, AVX-512F, or `f64::mul_add` elsewhere).
+//! of U, z or y is kept. For a single output two consecutive steps share one pass over the
+//! columns (both row operations per column in registers, the same operations per value).
+//! The lanes of one block run the same instructions (the pivot choice is a per-lane
+//! select; the instruction set is chosen at run time); every lane depends only on its own
+//! frequency, so a result does not depend on the block it was computed in, on the thread
+//! or on the instruction set (the fused multiply-adds are correctly rounded on every path:
+//! AVX2 + FMA, AVX-512F, or `f64::mul_add` elsewhere).
 //!
 //! # Numerical aspects
 //! The same elimination as the scalar one (partial pivoting on a Hessenberg matrix, growth

@@ -14,7 +14,7 @@
 //! `sI − H` (one row operation per column, O(n²) complex operations instead of O(n³)).
 //! The triangular factor is never stored: the right-hand sides are eliminated with the
 //! rows, and `C̃ U⁻¹` is built forward, column by column, as the rows of U appear
-//! ([`super::frequency_lanes`]), so `G` comes out of the one sweep. The frequencies are
+//! (module `frequency_lanes`), so `G` comes out of the one sweep. The frequencies are
 //! solved 4 or 8 at a time, one per SIMD lane (AVX2 + FMA or AVX-512F, chosen at run
 //! time; plain code elsewhere, same bits), and spread over the rayon thread pool when the
 //! work is large enough. When the model has more outputs than inputs the dual
