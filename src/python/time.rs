@@ -2,7 +2,8 @@
 //! frequency responses, for single models and batches.
 
 use super::convert::{
-    array_nd, exact_model_from, exact_quad, model_from, quad, ExactIn, ExactOut, ModelIn, Quad,
+    array_nd, exact_model_from, exact_quad, model_from, model_from_arrays, quad, ExactIn, ExactOut,
+    ModelArrays, ModelIn, Quad,
 };
 use super::errors::{run, run_small, to_py, ModelError, SMALL_ORDER};
 use crate::error::ModelError as CoreError;
@@ -37,7 +38,7 @@ type Converted<'py> = (Quad<'py>, Bound<'py, PyDict>);
 #[pyo3(signature = (model, sample_time, method, prewarp_frequency, forward))]
 pub(crate) fn convert_time_base<'py>(
     py: Python<'py>,
-    model: ModelIn<'py>,
+    model: ModelArrays<'py>,
     sample_time: f64,
     method: &str,
     prewarp_frequency: Option<f64>,
@@ -45,7 +46,8 @@ pub(crate) fn convert_time_base<'py>(
 ) -> PyResult<Converted<'py>> {
     let name = method;
     let method = parse_method(method)?;
-    let ss = model_from(&model)?;
+    let ss = model_from_arrays(&model)?;
+    let small = ss.n_states() < SMALL_ORDER;
     let convert = move || {
         if forward {
             conversion::to_discrete(&ss, sample_time, method, prewarp_frequency)
@@ -53,7 +55,7 @@ pub(crate) fn convert_time_base<'py>(
             conversion::to_continuous(&ss, sample_time, method, prewarp_frequency)
         }
     };
-    let r = if model.0.as_array().dim().0 < SMALL_ORDER {
+    let r = if small {
         run_small(convert)?
     } else {
         run(py, convert)?
