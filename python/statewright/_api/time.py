@@ -137,8 +137,8 @@ def to_discrete(
         # Fast path for the common call (a float sample time, a known method name, no
         # options): the checks of _convert would pass unchanged; the model is checked as
         # always, by the same function.
-        out, info = compute.convert(v.float_model_for_core(a, b, c, d), sample_time, method, None, True)
-        return Realization._trusted(*out, info, frozen=True, sample_time=sample_time, owned=True)
+        (ra, rb, rc, rd), info = compute.convert(v.float_model_for_core(a, b, c, d), sample_time, method, None, True)
+        return Realization._from_core(ra, rb, rc, rd, info, sample_time)
     return _convert(a, b, c, d, sample_time, method, prewarp_frequency, exact, True)
 
 

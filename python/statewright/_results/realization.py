@@ -115,6 +115,18 @@ class Realization:
         self._sample_time = sample_time
         return self
 
+    @classmethod
+    def _from_core(
+        cls, a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, info: Dict[str, Any], sample_time: Any
+    ) -> "Realization":
+        """:meth:`_trusted` for read-only arrays and a fresh info dict from the core, with
+        positional arguments only (the per-call path of small conversions)."""
+        self = cls.__new__(cls)
+        self._a, self._b, self._c, self._d = a, b, c, d
+        self._info = types.MappingProxyType(info)
+        self._sample_time = sample_time
+        return self
+
     # -- the four matrices -------------------------------------------------------------
     @property
     def a(self) -> np.ndarray:
