@@ -9,8 +9,8 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
 use numpy::{
-    ndarray, PyArray, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
-    PyUntypedArrayMethods,
+    ndarray, PyArray, PyArray2, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray2,
+    PyReadonlyArray3, PyUntypedArrayMethods,
 };
 use pyo3::prelude::*;
 
@@ -21,6 +21,16 @@ pub(crate) type ModelIn<'py> = (
     PyReadonlyArray2<'py, f64>,
     PyReadonlyArray2<'py, f64>,
     PyReadonlyArray2<'py, f64>,
+);
+
+/// The four arrays of a model without numpy's borrow tracking, for the small per-call
+/// bindings where that tracking is a visible share of the cost; read by
+/// [`model_from_arrays`], which copies them at once under the GIL.
+pub(crate) type ModelArrays<'py> = (
+    Bound<'py, PyArray2<f64>>,
+    Bound<'py, PyArray2<f64>>,
+    Bound<'py, PyArray2<f64>>,
+    Bound<'py, PyArray2<f64>>,
 );
 
 /// Four arrays handed back to Python: `(A, B, C, D)`.
@@ -51,6 +61,20 @@ pub(crate) fn model_from(model: &ModelIn<'_>) -> PyResult<StateSpace<f64>> {
         matrix_from(d),
     )
     .map_err(to_py)
+}
+
+/// An owned core model from [`ModelArrays`], shapes checked by the core.
+pub(crate) fn model_from_arrays(model: &ModelArrays<'_>) -> PyResult<StateSpace<f64>> {
+    let copy = |x: &Bound<'_, PyArray2<f64>>| {
+        // SAFETY: the array is only read, and copied at once while this thread holds the
+        // GIL, so no Python code runs meanwhile; this extension never takes a mutable
+        // borrow of an input array, so no Rust reference to it can be writing either.
+        let view = unsafe { x.as_array() };
+        let (r, c) = view.dim();
+        Matrix::from_row_major(r, c, view.iter().copied().collect()).expect("shape from the array")
+    };
+    let (a, b, c, d) = model;
+    StateSpace::new(copy(a), copy(b), copy(c), copy(d)).map_err(to_py)
 }
 
 pub(crate) fn array2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {

@@ -2,7 +2,8 @@
 //! frequency responses, for single models and batches.
 
 use super::convert::{
-    array_nd, exact_model_from, exact_quad, model_from, quad, ExactIn, ExactOut, ModelIn, Quad,
+    array_nd, exact_model_from, exact_quad, model_from, model_from_arrays, quad, ExactIn, ExactOut,
+    ModelArrays, ModelIn, Quad,
 };
 use super::errors::{run, run_small, to_py, ModelError, SMALL_ORDER};
 use crate::error::ModelError as CoreError;
@@ -13,19 +14,12 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
 use numpy::{ndarray, Complex64, PyArray, PyReadonlyArray1, PyReadonlyArray3};
+use pyo3::intern;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
 fn parse_method(method: &str) -> PyResult<DiscretizationMethod> {
     method.parse().map_err(to_py)
-}
-
-fn info_dict<'py>(py: Python<'py>, info: &[(&'static str, f64)]) -> PyResult<Bound<'py, PyDict>> {
-    let d = PyDict::new(py);
-    for (k, v) in info {
-        d.set_item(*k, *v)?;
-    }
-    Ok(d)
 }
 
 fn complex_array<'py>(
@@ -44,14 +38,16 @@ type Converted<'py> = (Quad<'py>, Bound<'py, PyDict>);
 #[pyo3(signature = (model, sample_time, method, prewarp_frequency, forward))]
 pub(crate) fn convert_time_base<'py>(
     py: Python<'py>,
-    model: ModelIn<'py>,
+    model: ModelArrays<'py>,
     sample_time: f64,
     method: &str,
     prewarp_frequency: Option<f64>,
     forward: bool,
 ) -> PyResult<Converted<'py>> {
+    let name = method;
     let method = parse_method(method)?;
-    let ss = model_from(&model)?;
+    let ss = model_from_arrays(&model)?;
+    let small = ss.n_states() < SMALL_ORDER;
     let convert = move || {
         if forward {
             conversion::to_discrete(&ss, sample_time, method, prewarp_frequency)
@@ -59,12 +55,28 @@ pub(crate) fn convert_time_base<'py>(
             conversion::to_continuous(&ss, sample_time, method, prewarp_frequency)
         }
     };
-    let r = if model.0.as_array().dim().0 < SMALL_ORDER {
+    let r = if small {
         run_small(convert)?
     } else {
         run(py, convert)?
     };
-    Ok((quad(py, r.realization, true)?, info_dict(py, &r.info)?))
+    // The whole `.info` of the result, in its documented order: method, sample time, the
+    // figures (counts as ints), the prewarp frequency when given.
+    let info = PyDict::new(py);
+    info.set_item(intern!(py, "method"), name)?;
+    info.set_item(intern!(py, "sample_time"), sample_time)?;
+    for (k, v) in &r.info {
+        match *k {
+            "pade_degree" => info.set_item(intern!(py, "pade_degree"), *v as i64)?,
+            "squarings" => info.set_item(intern!(py, "squarings"), *v as i64)?,
+            "square_roots" => info.set_item(intern!(py, "square_roots"), *v as i64)?,
+            _ => info.set_item(*k, *v)?,
+        }
+    }
+    if let Some(w) = prewarp_frequency {
+        info.set_item(intern!(py, "prewarp_frequency"), w)?;
+    }
+    Ok((quad(py, r.realization, true)?, info))
 }
 
 fn exact_time(t: (BigInt, BigInt)) -> PyResult<BigRational> {

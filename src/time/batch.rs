@@ -132,7 +132,7 @@ pub fn frequency_response_batch(
         .map(|i| {
             // Balanced as in the single call, so batch results equal single calls.
             let (balanced, _) = crate::balance::balance_model(&models.model(i));
-            let model = HessenbergModel::new(&balanced, s.len())?;
+            let model = HessenbergModel::new(&balanced)?;
             model
                 .evaluate_many(&s, false)
                 .map_err(|(k, f)| failure_error(k, f, frequencies, s[k]))

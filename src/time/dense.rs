@@ -48,13 +48,17 @@ pub(crate) fn require_finite_result(what: &str, m: &DMatrix<f64>) -> Result<()> 
 
 /// Shapes and finiteness of a float model.
 pub(crate) fn check_model(ss: &StateSpace<f64>) -> Result<()> {
-    let checked = StateSpace::new(ss.a.clone(), ss.b.clone(), ss.c.clone(), ss.d.clone())?;
-    for (arg, m) in [
-        ("a", &checked.a),
-        ("b", &checked.b),
-        ("c", &checked.c),
-        ("d", &checked.d),
-    ] {
+    let (n, m, p) = (ss.a.rows(), ss.b.cols(), ss.c.rows());
+    let fits = ss.a.cols() == n
+        && ss.b.rows() == n
+        && ss.c.cols() == n
+        && ss.d.rows() == p
+        && ss.d.cols() == m;
+    if !fits {
+        // The shape error of the constructor (copies only on this path).
+        StateSpace::new(ss.a.clone(), ss.b.clone(), ss.c.clone(), ss.d.clone())?;
+    }
+    for (arg, m) in [("a", &ss.a), ("b", &ss.b), ("c", &ss.c), ("d", &ss.d)] {
         crate::error::require_finite(arg, m.as_slice())?;
     }
     Ok(())

@@ -10,7 +10,7 @@
 //! | impulse invariance and its inverse | [`impulse_invariant`] |
 //! | bilinear map (optionally prewarped), forward and backward differences, exact or float | [`bilinear`] |
 //! | conversion by method name, both directions | [`conversion`] |
-//! | frequency response by Hessenberg solves | [`frequency_response`] |
+//! | frequency response by Hessenberg solves (frequencies in SIMD lanes) | [`frequency_response`] |
 //! | batches of conversions and frequency responses over rayon | [`batch`] |
 //!
 //! Conventions: a discrete-time model advances `x[k+1] = A x[k] + B u[k]` once per
@@ -21,6 +21,7 @@ pub mod bilinear;
 pub mod conversion;
 pub mod exponential;
 pub mod first_order_hold;
+mod frequency_lanes;
 pub mod frequency_response;
 pub mod impulse_invariant;
 pub mod logarithm;

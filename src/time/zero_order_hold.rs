@@ -42,9 +42,10 @@
 use super::dense::{
     exponent_towards, from_na, norm1, norm_fro, require_finite_result, scale_pow2, to_na,
 };
-use super::exponential::exponential;
+use super::exponential::{exponential, exponential_small, with_small_order, Small, SMALL};
 use super::logarithm::{check_principal_logarithm, principal_logarithm};
 use crate::error::{ModelError, Result};
+use crate::matrix::Matrix;
 use crate::state_space::StateSpace;
 use nalgebra::DMatrix;
 
@@ -82,8 +83,82 @@ pub(crate) fn hold_matrices(
     Ok((ad, bd, exp.pade_degree, exp.squarings))
 }
 
+/// [`to_discrete`] without heap allocation besides the result (n + m = K ≤ [`SMALL`]):
+/// the steps and errors of [`hold_matrices`] on a fixed-size block matrix.
+fn to_discrete_small<const K: usize>(ss: &StateSpace<f64>, t: f64) -> Result<Converted> {
+    let (n, m) = (ss.n_states(), ss.n_inputs());
+    let mut block = Small::<K>::zeros();
+    let overflow = |what: &str| ModelError::Overflow { what: what.into() };
+    let column_sums = |block: &Small<K>, cols: std::ops::Range<usize>| {
+        cols.map(|j| (0..n).map(|i| block.v[i][j].abs()).sum::<f64>())
+            .fold(0.0, f64::max)
+    };
+    let (a, b) = (ss.a.as_slice(), ss.b.as_slice());
+    for (i, row) in block.v.iter_mut().take(n).enumerate() {
+        for (x, y) in row[..n].iter_mut().zip(&a[i * n..(i + 1) * n]) {
+            *x = y * t;
+        }
+    }
+    if !block.v[..n]
+        .iter()
+        .all(|r| r[..n].iter().all(|v| v.is_finite()))
+    {
+        return Err(overflow("a * sample_time"));
+    }
+    for (i, row) in block.v.iter_mut().take(n).enumerate() {
+        for (x, y) in row[n..].iter_mut().zip(&b[i * m..(i + 1) * m]) {
+            *x = y * t;
+        }
+    }
+    if !block.v[..n]
+        .iter()
+        .all(|r| r[n..].iter().all(|v| v.is_finite()))
+    {
+        return Err(overflow("b * sample_time"));
+    }
+    let e = exponent_towards(
+        column_sums(&block, n..K),
+        column_sums(&block, 0..n).max(f64::MIN_POSITIVE),
+    );
+    if e != 0 {
+        let f = crate::matrix::pow2(e);
+        for row in block.v.iter_mut().take(n) {
+            row[n..].iter_mut().for_each(|v| *v *= f);
+        }
+    }
+    let (value, degree, squarings) = exponential_small(&block)?;
+    let ad: Vec<f64> = value.v[..n]
+        .iter()
+        .flat_map(|r| r[..n].iter().copied())
+        .collect();
+    let back = crate::matrix::pow2(-e);
+    let bd: Vec<f64> = value.v[..n]
+        .iter()
+        .flat_map(|r| r[n..].iter().map(|&v| if e != 0 { v * back } else { v }))
+        .collect();
+    if !bd.iter().all(|v| v.is_finite()) {
+        return Err(overflow("the zero-order-hold input matrix"));
+    }
+    Ok(Converted {
+        realization: StateSpace {
+            a: Matrix::from_row_major(n, n, ad).expect("shape"),
+            b: Matrix::from_row_major(n, m, bd).expect("shape"),
+            c: ss.c.clone(),
+            d: ss.d.clone(),
+        },
+        info: vec![
+            ("pade_degree", degree as f64),
+            ("squarings", squarings as f64),
+        ],
+    })
+}
+
 /// The zero-order-hold discretization with sample time `t`.
 pub fn to_discrete(ss: &StateSpace<f64>, t: f64) -> Result<Converted> {
+    let k = ss.n_states() + ss.n_inputs();
+    if k <= SMALL {
+        return with_small_order!(k, to_discrete_small(ss, t));
+    }
     let (a, b) = (to_na(&ss.a), to_na(&ss.b));
     let (ad, bd, degree, squarings) = hold_matrices(&a, &b, t)?;
     Ok(Converted {

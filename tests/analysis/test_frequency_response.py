@@ -174,3 +174,38 @@ def test_badly_scaled_states_are_not_a_pole(seed):
     integrator[:, 0] = 0.0  # a zero column: a pole at s = 0 in any state scaling
     with pytest.raises(sw.ModelError, match="pole"):
         sw.frequency_response(integrator, b, c, d, [0.0])
+
+
+@pytest.mark.parametrize("coupling", [0.0, 3.0, 8.0])
+def test_well_and_ill_conditioned_models_within_the_backward_error_bound(coupling):
+    # Reference: numpy's dense complex solve. A = Q (-I + coupling * shift) Q^T is normal for
+    # coupling 0 and strongly non-normal otherwise (cond(jwI - A) up to about 5e12 for 8.0).
+    # Both solves are backward stable, so they differ by at most about
+    # n eps cond(jwI - A) |C| |X| (common practice); the well-conditioned case to 1e-13.
+    rng = np.random.default_rng(5)
+    n = 14
+    q, _ = np.linalg.qr(rng.standard_normal((n, n)))
+    a = q @ (-np.eye(n) + np.diag(np.full(n - 1, coupling), 1)) @ q.T
+    b, c, d = rng.standard_normal((n, 2)), rng.standard_normal((3, n)), np.zeros((3, 2))
+    w = np.logspace(-2, 2, 50)
+    g = sw.frequency_response(a, b, c, d, w)
+    eps = np.finfo(float).eps
+    for k, wk in enumerate(w):
+        m = 1j * wk * np.eye(n) - a
+        x = np.linalg.solve(m, b)
+        ref = c @ x + d
+        err = np.max(np.abs(g[k] - ref))
+        if coupling == 0.0:
+            assert err <= 1e-13 * np.max(np.abs(ref))
+        else:
+            assert err <= n * eps * np.linalg.cond(m) * np.linalg.norm(c) * np.linalg.norm(x)
+
+
+def test_singular_to_working_precision_is_refused_not_answered():
+    # cond(jwI - A) beyond 1/eps (coupling 20: about 1e17): refused, never a wrong number.
+    rng = np.random.default_rng(5)
+    n = 14
+    q, _ = np.linalg.qr(rng.standard_normal((n, n)))
+    a = q @ (-np.eye(n) + np.diag(np.full(n - 1, 20.0), 1)) @ q.T
+    with pytest.raises(sw.ModelError, match=r"frequencies\[0\]"):
+        sw.frequency_response(a, np.ones((n, 1)), np.ones((1, n)), np.zeros((1, 1)), [0.01])

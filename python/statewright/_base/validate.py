@@ -256,23 +256,32 @@ def float_model_for_core(a: Any, b: Any, c: Any, d: Any) -> Tuple[np.ndarray, np
     finiteness itself (same message as here): float64 2-D arrays pass as they are, shapes
     checked; anything else goes through :func:`float_model`. The fast path of single
     calls on small models."""
+    nd = np.ndarray
+    f64 = _FLOAT64
     if (
-        type(a) is np.ndarray
-        and type(b) is np.ndarray
-        and type(c) is np.ndarray
-        and type(d) is np.ndarray
-        and a.dtype == np.float64
-        and b.dtype == np.float64
-        and c.dtype == np.float64
-        and d.dtype == np.float64
+        type(a) is nd
+        and type(b) is nd
+        and type(c) is nd
+        and type(d) is nd
+        and a.dtype is f64
+        and b.dtype is f64
+        and c.dtype is f64
+        and d.dtype is f64
         and a.ndim == 2
         and b.ndim == 2
         and c.ndim == 2
         and d.ndim == 2
     ):
-        check_model_shapes(a, b, c, d)
+        (n, n2), (nb, m), (p, nc) = a.shape, b.shape, c.shape
+        if not (n == n2 == nb == nc and d.shape == (p, m)):
+            check_model_shapes(a, b, c, d)  # raises with the message naming the argument
         return a, b, c, d
     return float_model(a, b, c, d)
+
+
+#: The native float64 dtype (numpy hands out this one object for it; any other float64
+#: descriptor, such as a byte-swapped one, takes the general path).
+_FLOAT64 = np.dtype(np.float64)
 
 
 def frozen(x: np.ndarray) -> np.ndarray:

@@ -26,14 +26,9 @@ def convert(
     model: Arrays4, sample_time: float, method: str, prewarp_frequency: Optional[float], forward: bool
 ) -> Tuple[Arrays4, Dict[str, Any]]:
     """``(arrays, info)``: the discrete model (``forward``) or the continuous one; the arrays
-    are read-only."""
-    (a, b, c, d), figures = _core.convert_time_base(model, sample_time, method, prewarp_frequency, forward)
-    info: Dict[str, Any] = {"method": method, "sample_time": sample_time}
-    for key, value in figures.items():
-        info[key] = int(value) if key in ("pade_degree", "squarings", "square_roots") else float(value)
-    if prewarp_frequency is not None:
-        info["prewarp_frequency"] = prewarp_frequency
-    return (a, b, c, d), info
+    are read-only. The core builds the whole info dict: ``"method"``, ``"sample_time"``,
+    its figures (counts as ints) and ``"prewarp_frequency"`` when given."""
+    return _core.convert_time_base(model, sample_time, method, prewarp_frequency, forward)
 
 
 def convert_exact(model: Arrays4, sample_time: Fraction, method: str, forward: bool) -> Arrays4:

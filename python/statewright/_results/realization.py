@@ -99,14 +99,31 @@ class Realization:
         info: Optional[Mapping[str, Any]] = None,
         frozen: bool = False,
         sample_time: Any = None,
+        owned: bool = False,
     ) -> "Realization":
-        """Wraps arrays fresh from the core (already checked) without another copy."""
+        """Wraps arrays fresh from the core (already checked) without another copy; with
+        ``owned`` the info dict is fresh too and is wrapped without a copy."""
         self = cls.__new__(cls)
         if frozen:
             self._a, self._b, self._c, self._d = a, b, c, d
         else:
             self._a, self._b, self._c, self._d = (v.frozen(x) for x in (a, b, c, d))
-        self._info = types.MappingProxyType(dict(info)) if info else _NO_INFO
+        if info:
+            self._info = types.MappingProxyType(info if owned and type(info) is dict else dict(info))
+        else:
+            self._info = _NO_INFO
+        self._sample_time = sample_time
+        return self
+
+    @classmethod
+    def _from_core(
+        cls, a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray, info: Dict[str, Any], sample_time: Any
+    ) -> "Realization":
+        """:meth:`_trusted` for read-only arrays and a fresh info dict from the core, with
+        positional arguments only (the per-call path of small conversions)."""
+        self = cls.__new__(cls)
+        self._a, self._b, self._c, self._d = a, b, c, d
+        self._info = types.MappingProxyType(info)
         self._sample_time = sample_time
         return self
 
