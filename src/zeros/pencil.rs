@@ -342,7 +342,7 @@ fn rounding_level_zeros(
     let (n, m, p) = (bal.n_states(), bal.n_inputs(), bal.n_outputs());
     let index = n + normal_rank;
     let (rows, cols) = (n + p, n + m);
-    let per_zero = 8.0 * (rows.max(cols) as f64) * (rows.min(cols) as f64).powi(2) + 1.0;
+    let per_zero = svd_flops(rows, cols);
     if per_zero * zeros.len() as f64 > VERIFY_BUDGET || norm == 0.0 {
         return Ok(false);
     }
@@ -746,6 +746,11 @@ fn regular_pencil_eigenvalues(ss: &StateSpace<f64>) -> Result<Vec<(f64, f64)>> {
 
 // ------------------------------------------------------------------ verification
 
+/// Rough flops of one SVD of a rows × cols complex pencil (for the verification budget).
+fn svd_flops(rows: usize, cols: usize) -> f64 {
+    8.0 * (rows.max(cols) as f64) * (rows.min(cols) as f64).powi(2) + 1.0
+}
+
 /// Largest relative `σ_{n+r}(P(z))` over the zeros checked, and how many were checked.
 fn verify(
     bal: &StateSpace<f64>,
@@ -760,7 +765,7 @@ fn verify(
         return Ok((0.0, 0));
     }
     let (rows, cols) = (n + p, n + m);
-    let per_zero = 8.0 * (rows.max(cols) as f64) * (rows.min(cols) as f64).powi(2) + 1.0;
+    let per_zero = svd_flops(rows, cols);
     let affordable = ((VERIFY_BUDGET / per_zero) as usize).max(1);
     let picks: Vec<usize> = if affordable >= zeros.len() {
         (0..zeros.len()).collect()
