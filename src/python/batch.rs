@@ -1,6 +1,6 @@
 //! Bindings of the batch functions (rayon in the core, the GIL released for the whole batch).
 
-use super::convert::{array_nd, batch_dims, owned, owned_2d, Quad};
+use super::convert::{array_nd, batch_dims, BatchInput, Quad};
 use super::errors::{run, to_py};
 use super::realize::parse_form;
 use crate::batch;
@@ -25,9 +25,10 @@ pub(crate) fn realize_batch<'py>(
             found: format!("{count_den} rows"),
         }));
     }
-    let (num, den) = (owned_2d(&num), owned_2d(&den));
+    // The arrays stay alive (borrowed here) until the core returns: no copy needed.
+    let (num_data, den_data) = (BatchInput::of2(&num), BatchInput::of2(&den));
     let r = run(py, move || {
-        batch::realize_batch(&num, k, &den, n1, count, form)
+        batch::realize_batch(num_data.data(), k, den_data.data(), n1, count, form)
     })?;
     let n = r.n;
     Ok((
@@ -47,9 +48,11 @@ pub(crate) fn transfer_function_batch<'py>(
     d: PyReadonlyArray3<'py, f64>,
 ) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>)> {
     let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
-    let (av, bv, cv, dv) = (owned(&a), owned(&b), owned(&c), owned(&d));
+    // The arrays stay alive (borrowed here) until the core returns: no copy needed.
+    let inputs = [&a, &b, &c, &d].map(BatchInput::of3);
     let t = run(py, move || {
-        batch::transfer_function_batch(&av, &bv, &cv, &dv, count, n, m, p)
+        let [av, bv, cv, dv] = &inputs;
+        batch::transfer_function_batch(av.data(), bv.data(), cv.data(), dv.data(), count, n, m, p)
     })?;
     Ok((
         array_nd(py, t.num, &[count, p, m, n + 1])?,

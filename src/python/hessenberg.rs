@@ -1,7 +1,7 @@
 //! Bindings of the Hessenberg route (orthogonal reduction, La Budde's recurrence) and of
 //! the batch transfer functions with a recovery method.
 
-use super::convert::{array_nd, batch_dims, matrix_from, model_from, owned, ModelIn};
+use super::convert::{array_nd, batch_dims, matrix_from, model_from, BatchInput, ModelIn};
 use super::errors::{run, to_py};
 use crate::batch;
 use crate::recover::{self, hessenberg, Method};
@@ -69,9 +69,19 @@ pub(crate) fn transfer_function_batch_method<'py>(
 ) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>)> {
     let method: Method = method.parse().map_err(to_py)?;
     let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
-    let (av, bv, cv, dv) = (owned(&a), owned(&b), owned(&c), owned(&d));
+    // The arrays stay alive (borrowed here) until the core returns: no copy needed.
+    let inputs = [&a, &b, &c, &d].map(BatchInput::of3);
     let t = run(py, move || {
-        batch::transfer_function_batch_with(&av, &bv, &cv, &dv, count, (n, m, p), method)
+        let [av, bv, cv, dv] = &inputs;
+        batch::transfer_function_batch_with(
+            av.data(),
+            bv.data(),
+            cv.data(),
+            dv.data(),
+            count,
+            (n, m, p),
+            method,
+        )
     })?;
     Ok((
         array_nd(py, t.num, &[count, p, m, n + 1])?,
@@ -89,9 +99,11 @@ pub(crate) fn transfer_function_batch_hessenberg<'py>(
     d: PyReadonlyArray3<'py, f64>,
 ) -> PyResult<Four<'py>> {
     let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
-    let (av, bv, cv, dv) = (owned(&a), owned(&b), owned(&c), owned(&d));
+    // The arrays stay alive (borrowed here) until the core returns: no copy needed.
+    let inputs = [&a, &b, &c, &d].map(BatchInput::of3);
     let r = run(py, move || {
-        batch::hessenberg_batch(&av, &bv, &cv, &dv, count, (n, m, p))
+        let [av, bv, cv, dv] = &inputs;
+        batch::hessenberg_batch(av.data(), bv.data(), cv.data(), dv.data(), count, (n, m, p))
     })?;
     Ok((
         array_nd(py, r.transfer.num, &[count, p, m, n + 1])?,

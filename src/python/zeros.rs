@@ -2,7 +2,7 @@
 //! zeros-poles-gain in and out, and the zeros batch.
 
 use super::convert::{
-    array2, array_nd, batch_dims, model_from, owned, quad, vector_from, ModelIn, Quad,
+    array2, array_nd, batch_dims, model_from, quad, vector_from, BatchInput, ModelIn, Quad,
 };
 use super::errors::run;
 use super::realize::parse_form;
@@ -125,9 +125,13 @@ pub(crate) fn invariant_zeros_batch<'py>(
     tol: Option<f64>,
 ) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>, Vec<usize>)> {
     let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
-    let (av, bv, cv, dv) = (owned(&a), owned(&b), owned(&c), owned(&d));
+    // The arrays stay alive (borrowed here) until the core returns: no copy needed.
+    let inputs = [&a, &b, &c, &d].map(BatchInput::of3);
     let shape = BatchShape { count, n, m, p };
-    let z = run(py, move || core_batch(&av, &bv, &cv, &dv, shape, tol))?;
+    let z = run(py, move || {
+        let [av, bv, cv, dv] = &inputs;
+        core_batch(av.data(), bv.data(), cv.data(), dv.data(), shape, tol)
+    })?;
     let width = n.max(1);
     Ok((
         array_nd(py, z.re, &[count, width])?,

@@ -110,3 +110,41 @@ def test_realize_fast_path_refusals_match_the_general_route(num, den, match):
     with pytest.raises(sw.ModelError) as general:
         sw.realize(tuple(num.tolist()) if num.ndim == 1 else num.tolist(), tuple(den.tolist()))
     assert str(fast.value) == str(general.value)
+
+
+@pytest.mark.parametrize("layout", ["contiguous", "fortran", "strided"])
+def test_batch_reads_its_inputs_in_place_without_changing_them(layout):
+    # The batch bindings read C-contiguous float64 inputs in place (no copy) and copy any
+    # other layout: every layout gives the same bits (identity), and no input changes.
+    rng = np.random.default_rng(31)
+    count, n = 13, 5
+    num = rng.standard_normal((count, n))
+    den = np.hstack([np.ones((count, 1)), rng.standard_normal((count, n))])
+    a, b, c, d = sw.realize_batch(num, den)
+    ref_num, ref_den = sw.transfer_function_batch(a, b, c, d)
+    ref_real = sw.realize_batch(num, den)
+
+    def arrange(x):
+        if layout == "fortran":
+            return np.asfortranarray(x)
+        if layout == "strided":
+            wide = np.zeros(x.shape[:-1] + (2 * x.shape[-1],))
+            wide[..., ::2] = x
+            return wide[..., ::2]
+        return np.array(x)
+
+    args = [arrange(x) for x in (a, b, c, d)]
+    before = [x.copy() for x in args]
+    got_num, got_den = sw.transfer_function_batch(*args)
+    assert np.array_equal(bits(got_num), bits(ref_num)) and np.array_equal(bits(got_den), bits(ref_den))
+    for x, y in zip(args, before):
+        assert np.array_equal(bits(x), bits(y))
+    n_in, d_in = arrange(num), arrange(den)
+    n_before, d_before = n_in.copy(), d_in.copy()
+    for got, want in zip(sw.realize_batch(n_in, d_in), ref_real):
+        assert np.array_equal(bits(got), bits(want))
+    assert np.array_equal(bits(n_in), bits(n_before)) and np.array_equal(bits(d_in), bits(d_before))
+    z_ref = sw.invariant_zeros_batch(a, b, c, d)
+    z_got = sw.invariant_zeros_batch(*args)
+    for x, y in zip(z_got, z_ref):
+        assert np.array_equal(np.asarray(x), np.asarray(y), equal_nan=True)
