@@ -387,7 +387,7 @@ fn decompose(
         if part(i) >= 2 {
             for j in 0..b.cols() {
                 residual = residual.max(b.get(i, j).abs() / nb);
-                zb += b.get(i, j) * b.get(i, j);
+                zb = zb.hypot(*b.get(i, j)); // a 2-norm that cannot overflow
                 b.set(i, j, 0.0);
             }
         }
@@ -396,7 +396,7 @@ fn decompose(
         for j in 0..n {
             if part(j) == 1 || part(j) == 3 {
                 residual = residual.max(c.get(i, j).abs() / nc_norm);
-                zc += c.get(i, j) * c.get(i, j);
+                zc = zc.hypot(*c.get(i, j));
                 c.set(i, j, 0.0);
             }
         }
@@ -424,7 +424,7 @@ fn decompose(
         d: ss.d.clone(),
     };
     let markov = markov_residual(bal, &minimal);
-    let rel = |z: f64, norm: f64| if z == 0.0 { 0.0 } else { z.sqrt() / norm };
+    let rel = |z: f64, norm: f64| if z == 0.0 { 0.0 } else { z / norm };
     Ok(KalmanDecomposition {
         realization,
         t,

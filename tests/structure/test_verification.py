@@ -138,3 +138,16 @@ def test_planted_kalman_sizes_after_the_refined_split(n, seed):
     assert_same_response(tuple(mini), (A, B, C, D), delta=n * EPS * cond)
     # the minimal realization agrees (its own verified search)
     assert sw.minimal_realization(A, B, C, D).n_states == sizes[0]
+
+
+def test_kalman_figures_stay_finite_for_huge_entries():
+    # A fuzz case: C of order 1e301 and no inputs. The zeroed part of C is a 2-norm of
+    # entries near 1e285, whose plain sum of squares overflowed to inf in info["zeroed_c"];
+    # every figure of a result is finite (the rule for float results).
+    a, b, d = np.zeros((3, 3)), np.zeros((3, 0)), np.zeros((1, 0))
+    c = np.full((1, 3), 1.07150861e301)
+    k = sw.kalman_decomposition(a, b, c, d)
+    assert sum(k.sizes) == 3
+    for key, value in k.info.items():
+        if isinstance(value, float):
+            assert np.isfinite(value), key
