@@ -26,7 +26,7 @@ pub(crate) fn realize_batch<'py>(
         }));
     }
     // The arrays stay alive (borrowed here) until the core returns: no copy needed.
-    let (num_data, den_data) = (BatchInput::of2(&num), BatchInput::of2(&den));
+    let (num_data, den_data) = (BatchInput::of(&num), BatchInput::of(&den));
     let r = run(py, move || {
         batch::realize_batch(num_data.data(), k, den_data.data(), n1, count, form)
     })?;
@@ -49,7 +49,7 @@ pub(crate) fn transfer_function_batch<'py>(
 ) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>)> {
     let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
     // The arrays stay alive (borrowed here) until the core returns: no copy needed.
-    let inputs = [&a, &b, &c, &d].map(BatchInput::of3);
+    let inputs = [&a, &b, &c, &d].map(BatchInput::of);
     let t = run(py, move || {
         let [av, bv, cv, dv] = &inputs;
         batch::transfer_function_batch(av.data(), bv.data(), cv.data(), dv.data(), count, n, m, p)

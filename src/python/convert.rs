@@ -9,8 +9,8 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
 use numpy::{
-    ndarray, PyArray, PyArray2, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray2,
-    PyReadonlyArray3, PyUntypedArrayMethods,
+    ndarray, PyArray, PyArray2, PyArrayMethods, PyReadonlyArray, PyReadonlyArray1,
+    PyReadonlyArray2, PyReadonlyArray3, PyUntypedArrayMethods,
 };
 use pyo3::prelude::*;
 
@@ -111,15 +111,24 @@ pub(crate) fn copied_array<'py>(
     }
     // SAFETY: `new` returns an uninitialised C-contiguous array of exactly `data.len()`
     // float64 values (the product of `shape`, checked just above), not yet shared with
-    // Python; every value is written before it is returned, and clearing the WRITEABLE
-    // flag of a fresh array is what numpy's own `setflags(write=False)` does.
-    unsafe {
+    // Python; every value is written before it is returned.
+    let arr = unsafe {
         let arr = PyArray::<f64, _>::new(py, ndarray::IxDyn(shape), false);
         std::ptr::copy_nonoverlapping(data.as_ptr(), arr.data(), data.len());
-        if frozen {
-            (*arr.as_array_ptr()).fields.flags &= !numpy::npyffi::NPY_ARRAY_WRITEABLE;
-        }
-        Ok(arr)
+        arr
+    };
+    if frozen {
+        freeze(&arr);
+    }
+    Ok(arr)
+}
+
+/// Marks a fresh array read-only.
+fn freeze(arr: &Bound<'_, PyArray<f64, ndarray::IxDyn>>) {
+    // SAFETY: the caller created the array and has not shared it yet; clearing the
+    // WRITEABLE flag is what numpy's own `setflags(write=False)` does.
+    unsafe {
+        (*arr.as_array_ptr()).fields.flags &= !numpy::npyffi::NPY_ARRAY_WRITEABLE;
     }
 }
 
@@ -140,11 +149,7 @@ fn typed_array<'py>(
 pub(crate) fn frozen2<'py>(py: Python<'py>, m: Matrix<f64>) -> PyResult<Bound<'py, PyAny>> {
     let shape = [m.rows(), m.cols()];
     let arr = typed_array(py, m.into_vec(), &shape)?;
-    // SAFETY: the array was created just above and is not shared yet; clearing the
-    // WRITEABLE flag is what numpy's own `setflags(write=False)` does.
-    unsafe {
-        (*arr.as_array_ptr()).fields.flags &= !numpy::npyffi::NPY_ARRAY_WRITEABLE;
-    }
+    freeze(&arr);
     Ok(arr.into_any())
 }
 
@@ -265,16 +270,8 @@ pub(crate) fn batch_dims(
     Ok((count, n, m, p))
 }
 
-/// An owned row-major copy of a stack (no copy beyond one when it is contiguous).
-/// A row-major copy of a 2-D array (one memcpy when it is contiguous).
-pub(crate) fn owned_2d(x: &PyReadonlyArray2<'_, f64>) -> Vec<f64> {
-    match x.as_slice() {
-        Ok(s) => s.to_vec(),
-        Err(_) => x.as_array().iter().copied().collect(),
-    }
-}
-
-pub(crate) fn owned(x: &PyReadonlyArray3<'_, f64>) -> Vec<f64> {
+/// An owned row-major copy of an array of any dimension (one memcpy when it is contiguous).
+pub(crate) fn owned<D: ndarray::Dimension>(x: &PyReadonlyArray<'_, f64, D>) -> Vec<f64> {
     match x.as_slice() {
         Ok(s) => s.to_vec(),
         Err(_) => x.as_array().iter().copied().collect(),
@@ -301,17 +298,7 @@ unsafe impl Send for BatchInput {}
 unsafe impl Sync for BatchInput {}
 
 impl BatchInput {
-    pub(crate) fn of2(x: &PyReadonlyArray2<'_, f64>) -> Self {
-        match x.as_slice() {
-            Ok(s) if !s.is_empty() => BatchInput::Shared {
-                ptr: s.as_ptr(),
-                len: s.len(),
-            },
-            _ => BatchInput::Owned(owned_2d(x)),
-        }
-    }
-
-    pub(crate) fn of3(x: &PyReadonlyArray3<'_, f64>) -> Self {
+    pub(crate) fn of<D: ndarray::Dimension>(x: &PyReadonlyArray<'_, f64, D>) -> Self {
         match x.as_slice() {
             Ok(s) if !s.is_empty() => BatchInput::Shared {
                 ptr: s.as_ptr(),

@@ -70,7 +70,7 @@ pub(crate) fn transfer_function_batch_method<'py>(
     let method: Method = method.parse().map_err(to_py)?;
     let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
     // The arrays stay alive (borrowed here) until the core returns: no copy needed.
-    let inputs = [&a, &b, &c, &d].map(BatchInput::of3);
+    let inputs = [&a, &b, &c, &d].map(BatchInput::of);
     let t = run(py, move || {
         let [av, bv, cv, dv] = &inputs;
         batch::transfer_function_batch_with(
@@ -100,7 +100,7 @@ pub(crate) fn transfer_function_batch_hessenberg<'py>(
 ) -> PyResult<Four<'py>> {
     let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
     // The arrays stay alive (borrowed here) until the core returns: no copy needed.
-    let inputs = [&a, &b, &c, &d].map(BatchInput::of3);
+    let inputs = [&a, &b, &c, &d].map(BatchInput::of);
     let r = run(py, move || {
         let [av, bv, cv, dv] = &inputs;
         batch::hessenberg_batch(av.data(), bv.data(), cv.data(), dv.data(), count, (n, m, p))

@@ -126,7 +126,7 @@ pub(crate) fn invariant_zeros_batch<'py>(
 ) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyAny>, Vec<usize>)> {
     let (count, n, m, p) = batch_dims(&a, &b, &c, &d)?;
     // The arrays stay alive (borrowed here) until the core returns: no copy needed.
-    let inputs = [&a, &b, &c, &d].map(BatchInput::of3);
+    let inputs = [&a, &b, &c, &d].map(BatchInput::of);
     let shape = BatchShape { count, n, m, p };
     let z = run(py, move || {
         let [av, bv, cv, dv] = &inputs;
