@@ -130,9 +130,7 @@ pub fn frequency_response_batch(
     let results: Vec<Result<Vec<Complex<f64>>>> = (0..count)
         .into_par_iter()
         .map(|i| {
-            // Balanced as in the single call, so batch results equal single calls.
-            let (balanced, _) = crate::balance::balance_model(&models.model(i));
-            let model = HessenbergModel::new(&balanced)?;
+            let model = HessenbergModel::new(&models.model(i))?;
             model
                 .evaluate_many(&s, false)
                 .map_err(|(k, f)| failure_error(k, f, frequencies, s[k]))

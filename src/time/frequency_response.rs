@@ -162,6 +162,10 @@ impl HessenbergModel {
     /// Checks the model and reduces A (or Aᵀ, for the dual when p > m) to Hessenberg form.
     pub fn new(ss: &StateSpace<f64>) -> Result<Self> {
         check_model(ss)?;
+        // G is the same in every state coordinates; balanced by powers of two (exact),
+        // badly scaled states no longer make sI - A look singular far from any pole.
+        let (balanced, _) = crate::balance::balance_model(ss);
+        let ss = &balanced;
         let (n, m, p) = (ss.n_states(), ss.n_inputs(), ss.n_outputs());
         let dual = p > m;
         let (h, b, c) = if dual {
@@ -340,10 +344,7 @@ pub fn frequency_response(
     sample_time: Option<f64>,
     parallel: bool,
 ) -> Result<Vec<Complex<f64>>> {
-    // G is the same in every state coordinates; balanced by powers of two (exact), badly
-    // scaled states no longer make sI - A look singular at a frequency far from any pole.
-    let (balanced, _) = crate::balance::balance_model(ss);
-    let model = HessenbergModel::new(&balanced)?;
+    let model = HessenbergModel::new(ss)?;
     let s = points(frequencies, sample_time)?;
     if s.iter().any(|z| !z.re.is_finite()) {
         return Err(ModelError::BadValue {
