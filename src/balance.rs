@@ -19,14 +19,22 @@ pub fn balance(a: &Matrix<f64>) -> (Matrix<f64>, Vec<f64>) {
     let n = a.rows();
     let mut m = a.clone();
     let mut scale = vec![1.0; n];
+    balance_in_place(m.as_mut_slice(), n, &mut scale);
+    (m, scale)
+}
+
+/// [`balance`] on a row-major n×n slice, in place; `scale` (n entries, all 1 on entry)
+/// receives the diagonal of S. No allocation (the small conversions call it on the stack).
+pub fn balance_in_place(m: &mut [f64], n: usize, scale: &mut [f64]) {
+    debug_assert!(m.len() == n * n && scale.len() == n);
     for _sweep in 0..64 {
         let mut converged = true;
         for i in 0..n {
             let (mut col, mut row) = (0.0, 0.0);
             for j in 0..n {
                 if j != i {
-                    col += m.get(j, i).abs();
-                    row += m.get(i, j).abs();
+                    col += m[j * n + i].abs();
+                    row += m[i * n + j].abs();
                 }
             }
             // Zero or overflowing sums: nothing to balance here (and an infinite sum would
@@ -51,8 +59,8 @@ pub fn balance(a: &Matrix<f64>) -> (Matrix<f64>, Vec<f64>) {
                 converged = false;
                 scale[i] *= f;
                 for j in 0..n {
-                    m.set(i, j, m.get(i, j) / f);
-                    m.set(j, i, m.get(j, i) * f);
+                    m[i * n + j] /= f;
+                    m[j * n + i] *= f;
                 }
             }
         }
@@ -60,7 +68,6 @@ pub fn balance(a: &Matrix<f64>) -> (Matrix<f64>, Vec<f64>) {
             break;
         }
     }
-    (m, scale)
 }
 
 /// The balanced model `(S⁻¹ A S, S⁻¹ B, C S, D)` and the diagonal of S (the model itself

@@ -103,6 +103,9 @@ def realize_transfer_matrix_exact(
 def convert_time_base(
     model: _Model, sample_time: float, method: str, prewarp_frequency: Optional[float], forward: bool
 ) -> Tuple[_Quad, Dict[str, Any]]: ...
+def zero_order_hold_plain(
+    a: Any, b: Any, c: Any, d: Any, sample_time: Any, method: Any
+) -> Optional[Tuple[_F64, _F64, _F64, _F64, Dict[str, Any]]]: ...
 def convert_time_base_exact(
     model: Tuple[_Exact, _Exact, _Exact, _Exact], sample_time: Tuple[int, int], method: str, forward: bool
 ) -> Tuple[_Exact, _Exact, _Exact, _Exact]: ...

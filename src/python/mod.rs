@@ -91,6 +91,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     )?)?;
     // time base
     m.add_function(wrap_pyfunction!(time::convert_time_base, m)?)?;
+    m.add_function(wrap_pyfunction!(time::zero_order_hold_plain, m)?)?;
     m.add_function(wrap_pyfunction!(time::convert_time_base_exact, m)?)?;
     m.add_function(wrap_pyfunction!(time::frequency_response, m)?)?;
     m.add_function(wrap_pyfunction!(time::frequency_response_batch, m)?)?;

@@ -2,21 +2,24 @@
 //! frequency responses, for single models and batches.
 
 use super::convert::{
-    array_nd, exact_model_from, exact_quad, model_from, model_from_arrays, quad, ExactIn, ExactOut,
-    ModelArrays, ModelIn, Quad,
+    array_nd, copied_array, exact_model_from, exact_quad, model_from, model_from_arrays, quad,
+    ExactIn, ExactOut, ModelArrays, ModelIn, Quad,
 };
 use super::errors::{run, run_small, to_py, ModelError, SMALL_ORDER};
 use crate::error::ModelError as CoreError;
 use crate::time::batch::{self as time_batch, BatchShape, ModelStack};
 use crate::time::conversion::{self, DiscretizationMethod};
 use crate::time::frequency_response as response;
+use crate::time::zero_order_hold::{self as hold, SMALL_HOLD};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
-use numpy::{ndarray, Complex64, PyArray, PyReadonlyArray1, PyReadonlyArray3};
+use numpy::{
+    ndarray, Complex64, PyArray, PyArray2, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray3,
+};
 use pyo3::intern;
 use pyo3::prelude::*;
-use pyo3::types::PyDict;
+use pyo3::types::{PyDict, PyFloat, PyString};
 
 fn parse_method(method: &str) -> PyResult<DiscretizationMethod> {
     method.parse().map_err(to_py)
@@ -77,6 +80,102 @@ pub(crate) fn convert_time_base<'py>(
         info.set_item(intern!(py, "prewarp_frequency"), w)?;
     }
     Ok((quad(py, r.realization, true)?, info))
+}
+
+/// The arrays and info dict of a plain zero-order hold: `(A_d, B_d, C_d, D_d, info)`.
+type PlainHold<'py> = (
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Bound<'py, PyAny>,
+    Bound<'py, PyDict>,
+);
+
+/// A float64 2-D array of numpy's own type (no subclass, native byte order), or None.
+fn plain_array<'a, 'py>(x: &'a Bound<'py, PyAny>) -> Option<&'a Bound<'py, PyArray2<f64>>> {
+    if !x.is_exact_instance_of::<PyArray2<f64>>() {
+        return None;
+    }
+    x.cast::<PyArray2<f64>>().ok()
+}
+
+/// A frozen copy of a 2-D input array (any strides).
+fn frozen_copy<'py>(py: Python<'py>, x: &Bound<'py, PyArray2<f64>>) -> PyResult<Bound<'py, PyAny>> {
+    // SAFETY: only read, and copied at once while this thread holds the GIL (as in
+    // `model_from_arrays`).
+    let view = unsafe { x.as_array() };
+    let shape = [view.nrows(), view.ncols()];
+    let arr = match view.as_slice() {
+        Some(values) => copied_array(py, values, &shape, true)?,
+        None => copied_array(py, &view.iter().copied().collect::<Vec<_>>(), &shape, true)?,
+    };
+    Ok(arr.into_any())
+}
+
+/// `to_discrete`'s fast path for its commonest call: the zero-order hold of a small
+/// model (n + m ≤ 10) given as four finite float64 arrays with a float sample time.
+/// Returns None for any other call (the general path then validates and converts as
+/// always); the core routine is the general path's own, so the results and errors are
+/// the same bits and messages.
+#[pyfunction]
+#[pyo3(signature = (a, b, c, d, sample_time, method))]
+pub(crate) fn zero_order_hold_plain<'py>(
+    py: Python<'py>,
+    a: &Bound<'py, PyAny>,
+    b: &Bound<'py, PyAny>,
+    c: &Bound<'py, PyAny>,
+    d: &Bound<'py, PyAny>,
+    sample_time: &Bound<'py, PyAny>,
+    method: &Bound<'py, PyAny>,
+) -> PyResult<Option<PlainHold<'py>>> {
+    let plain_method = method
+        .cast_exact::<PyString>()
+        .is_ok_and(|s| s.to_cow().is_ok_and(|s| s == "zero_order_hold"));
+    let t = match sample_time.cast_exact::<PyFloat>() {
+        Ok(f) => f.value(),
+        Err(_) => return Ok(None),
+    };
+    if !(plain_method && t > 0.0 && t.is_finite()) {
+        return Ok(None);
+    }
+    let (Some(a), Some(b), Some(c), Some(d)) = (
+        plain_array(a),
+        plain_array(b),
+        plain_array(c),
+        plain_array(d),
+    ) else {
+        return Ok(None);
+    };
+    // SAFETY: only read while this thread holds the GIL (as in `model_from_arrays`).
+    let (va, vb, vc, vd) = unsafe { (a.as_array(), b.as_array(), c.as_array(), d.as_array()) };
+    let ((n, n2), (nb, m), (p, nc)) = (va.dim(), vb.dim(), vc.dim());
+    if n != n2 || nb != n || nc != n || vd.dim() != (p, m) || !hold::fits_small(n, m) {
+        return Ok(None);
+    }
+    let finite = |v: &ndarray::ArrayView2<'_, f64>| v.iter().all(|x| x.is_finite());
+    if !(finite(&va) && finite(&vb) && finite(&vc) && finite(&vd)) {
+        return Ok(None); // the general path names the argument
+    }
+    const K: usize = SMALL_HOLD;
+    let (mut sa, mut sb) = ([0.0; K * K], [0.0; K * K]);
+    let (sa, sb) = (&mut sa[..n * n], &mut sb[..n * m]);
+    sa.iter_mut().zip(va.iter()).for_each(|(x, y)| *x = *y);
+    sb.iter_mut().zip(vb.iter()).for_each(|(x, y)| *x = *y);
+    let (mut ad, mut bd) = ([0.0; K * K], [0.0; K * K]);
+    let (ad, bd) = (&mut ad[..n * n], &mut bd[..n * m]);
+    let (degree, squarings) = run_small(|| hold::hold_small_into(sa, sb, (n, m), t, ad, bd))?;
+    let info = PyDict::new(py);
+    info.set_item(intern!(py, "method"), intern!(py, "zero_order_hold"))?;
+    info.set_item(intern!(py, "sample_time"), t)?;
+    info.set_item(intern!(py, "pade_degree"), degree as i64)?;
+    info.set_item(intern!(py, "squarings"), squarings as i64)?;
+    Ok(Some((
+        copied_array(py, ad, &[n, n], true)?.into_any(),
+        copied_array(py, bd, &[n, m], true)?.into_any(),
+        frozen_copy(py, c)?,
+        frozen_copy(py, d)?,
+        info,
+    )))
 }
 
 fn exact_time(t: (BigInt, BigInt)) -> PyResult<BigRational> {

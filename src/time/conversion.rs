@@ -185,6 +185,12 @@ pub fn to_discrete(
 ) -> Result<Conversion> {
     check_model(ss)?;
     let t = step(sample_time, method, prewarp_frequency)?;
+    if method == DiscretizationMethod::ZeroOrderHold
+        && zero_order_hold::fits_small(ss.n_states(), ss.n_inputs())
+    {
+        // Balances and scales back itself, on the stack (C and D unchanged).
+        return zero_order_hold::to_discrete_small(ss, t);
+    }
     in_balanced_coordinates(ss, |ss| match method {
         DiscretizationMethod::ZeroOrderHold => zero_order_hold::to_discrete(ss, t),
         DiscretizationMethod::FirstOrderHold => first_order_hold::to_discrete(ss, t),

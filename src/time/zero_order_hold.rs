@@ -83,19 +83,69 @@ pub(crate) fn hold_matrices(
     Ok((ad, bd, exp.pade_degree, exp.squarings))
 }
 
-/// [`to_discrete`] without heap allocation besides the result (n + m = K ≤ [`SMALL`]):
-/// the steps and errors of [`hold_matrices`] on a fixed-size block matrix.
-fn to_discrete_small<const K: usize>(ss: &StateSpace<f64>, t: f64) -> Result<Converted> {
-    let (n, m) = (ss.n_states(), ss.n_inputs());
-    let mut block = Small::<K>::zeros();
+/// Whether a model with `n` states and `m` inputs takes [`hold_small_into`] (the block
+/// matrix fits the stack exponential).
+pub fn fits_small(n: usize, m: usize) -> bool {
+    n + m <= SMALL_HOLD
+}
+
+/// Largest `n + m` of the stack route (the stack exponential's largest order).
+pub const SMALL_HOLD: usize = SMALL;
+
+/// The zero-order hold of a small model (`n + m ≤` [`SMALL`]) without heap allocation:
+/// `A_d` (n×n) and `B_d` (n×m), row-major, written into `ad` and `bd` from the row-major
+/// `a` and `b`; returns the Padé degree and the number of squarings. The steps and errors
+/// of the general route (power-of-two state balancing, then [`hold_matrices`], then the
+/// result scaled back to the given coordinates) on fixed-size arrays. `C_d = C` and
+/// `D_d = D` are the caller's (copied, never scaled). `a` and `b` must be finite.
+pub fn hold_small_into(
+    a: &[f64],
+    b: &[f64],
+    (n, m): (usize, usize),
+    t: f64,
+    ad: &mut [f64],
+    bd: &mut [f64],
+) -> Result<(usize, u32)> {
+    debug_assert!(a.len() == n * n && b.len() == n * m && ad.len() == n * n && bd.len() == n * m);
+    let k = n + m;
+    with_small_order!(k, hold_small(a, b, (n, m), t, ad, bd))
+}
+
+fn hold_small<const K: usize>(
+    a: &[f64],
+    b: &[f64],
+    (n, m): (usize, usize),
+    t: f64,
+    ad: &mut [f64],
+    bd: &mut [f64],
+) -> Result<(usize, u32)> {
     let overflow = |what: &str| ModelError::Overflow { what: what.into() };
+    // Balanced states (S⁻¹ A S, S⁻¹ B), as the general route; the given model where the
+    // scaling would overflow.
+    let mut balanced = [0.0; SMALL * SMALL];
+    let mut scale = [1.0; SMALL];
+    let (sa, scale) = (&mut balanced[..n * n], &mut scale[..n]);
+    sa.copy_from_slice(a);
+    crate::balance::balance_in_place(sa, n, scale);
+    let mut sb = [0.0; SMALL * SMALL];
+    let sb = &mut sb[..n * m];
+    for (i, s) in scale.iter().enumerate() {
+        for j in 0..m {
+            sb[i * m + j] = b[i * m + j] / s;
+        }
+    }
+    if !sa.iter().chain(sb.iter()).all(|v| v.is_finite()) {
+        sa.copy_from_slice(a);
+        sb.copy_from_slice(b);
+        scale.fill(1.0);
+    }
+    let mut block = Small::<K>::zeros();
     let column_sums = |block: &Small<K>, cols: std::ops::Range<usize>| {
         cols.map(|j| (0..n).map(|i| block.v[i][j].abs()).sum::<f64>())
             .fold(0.0, f64::max)
     };
-    let (a, b) = (ss.a.as_slice(), ss.b.as_slice());
     for (i, row) in block.v.iter_mut().take(n).enumerate() {
-        for (x, y) in row[..n].iter_mut().zip(&a[i * n..(i + 1) * n]) {
+        for (x, y) in row[..n].iter_mut().zip(&sa[i * n..(i + 1) * n]) {
             *x = y * t;
         }
     }
@@ -106,7 +156,7 @@ fn to_discrete_small<const K: usize>(ss: &StateSpace<f64>, t: f64) -> Result<Con
         return Err(overflow("a * sample_time"));
     }
     for (i, row) in block.v.iter_mut().take(n).enumerate() {
-        for (x, y) in row[n..].iter_mut().zip(&b[i * m..(i + 1) * m]) {
+        for (x, y) in row[n..].iter_mut().zip(&sb[i * m..(i + 1) * m]) {
             *x = y * t;
         }
     }
@@ -127,18 +177,48 @@ fn to_discrete_small<const K: usize>(ss: &StateSpace<f64>, t: f64) -> Result<Con
         }
     }
     let (value, degree, squarings) = exponential_small(&block)?;
-    let ad: Vec<f64> = value.v[..n]
-        .iter()
-        .flat_map(|r| r[..n].iter().copied())
-        .collect();
     let back = crate::matrix::pow2(-e);
-    let bd: Vec<f64> = value.v[..n]
-        .iter()
-        .flat_map(|r| r[n..].iter().map(|&v| if e != 0 { v * back } else { v }))
-        .collect();
+    for (i, row) in value.v[..n].iter().enumerate() {
+        for j in 0..m {
+            let v = row[n + j];
+            bd[i * m + j] = if e != 0 { v * back } else { v };
+        }
+    }
     if !bd.iter().all(|v| v.is_finite()) {
         return Err(overflow("the zero-order-hold input matrix"));
     }
+    // Back to the given state coordinates: S A_d S⁻¹ and S B_d (exact powers of two).
+    for (i, &si) in scale.iter().enumerate() {
+        for (j, &sj) in scale.iter().enumerate() {
+            ad[i * n + j] = value.v[i][j] * si / sj;
+        }
+        for v in &mut bd[i * m..(i + 1) * m] {
+            *v *= si;
+        }
+    }
+    for (arg, x) in [("a", &*ad), ("b", &*bd)] {
+        if !x.iter().all(|v| v.is_finite()) {
+            return Err(overflow(&format!(
+                "the converted model's {arg} in the given state coordinates"
+            )));
+        }
+    }
+    Ok((degree, squarings))
+}
+
+/// The zero-order hold of a small model, balanced and scaled back by [`hold_small_into`]
+/// (the caller skips the general balancing step for it).
+pub fn to_discrete_small(ss: &StateSpace<f64>, t: f64) -> Result<Converted> {
+    let (n, m) = (ss.n_states(), ss.n_inputs());
+    let (mut ad, mut bd) = (vec![0.0; n * n], vec![0.0; n * m]);
+    let (degree, squarings) = hold_small_into(
+        ss.a.as_slice(),
+        ss.b.as_slice(),
+        (n, m),
+        t,
+        &mut ad,
+        &mut bd,
+    )?;
     Ok(Converted {
         realization: StateSpace {
             a: Matrix::from_row_major(n, n, ad).expect("shape"),
@@ -153,12 +233,9 @@ fn to_discrete_small<const K: usize>(ss: &StateSpace<f64>, t: f64) -> Result<Con
     })
 }
 
-/// The zero-order-hold discretization with sample time `t`.
+/// The zero-order-hold discretization with sample time `t` (the general route, on a
+/// model the caller has balanced; small models take [`to_discrete_small`]).
 pub fn to_discrete(ss: &StateSpace<f64>, t: f64) -> Result<Converted> {
-    let k = ss.n_states() + ss.n_inputs();
-    if k <= SMALL {
-        return with_small_order!(k, to_discrete_small(ss, t));
-    }
     let (a, b) = (to_na(&ss.a), to_na(&ss.b));
     let (ad, bd, degree, squarings) = hold_matrices(&a, &b, t)?;
     Ok(Converted {

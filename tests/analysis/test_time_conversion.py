@@ -357,3 +357,55 @@ def test_badly_scaled_states_round_trip_and_match_the_balanced_model(method):
         back = sw.to_continuous(r.a, r.b, r.c, r.d, t, method)
         assert max_rel(back.a * e[:, None] / e[None, :], a0) <= 1e-9
         assert max_rel(back.b * e[:, None], b0) <= 1e-9
+
+
+def _quad_and_info(r):
+    return (r.a, r.b, r.c, r.d), dict(r.info)
+
+
+@pytest.mark.parametrize("seed", range(6))
+@pytest.mark.parametrize("n, m, p", [(1, 1, 1), (4, 2, 3), (8, 2, 1), (5, 5, 2), (0, 2, 2)])
+def test_float64_fast_path_gives_the_general_paths_bits(seed, n, m, p):
+    # (identity) the same model as float64 arrays (fast path) and as nested lists (the
+    # general path) must give identical bits, info and time base.
+    a, b, c, d = random_model(seed, n, m, p)
+    t = 0.1 * (seed + 1)
+    fast = sw.to_discrete(a, b, c, d, t)
+    # nested lists lose the shape of an empty model: integer arrays also take the general path
+    slow = (lambda x: x.astype(np.int64)) if n == 0 else (lambda x: x.tolist())
+    general = sw.to_discrete(slow(a), slow(b), slow(c), d.tolist(), t)
+    for x, y in zip(_quad_and_info(fast)[0], _quad_and_info(general)[0]):
+        assert x.shape == y.shape and x.tobytes() == y.tobytes()
+    assert fast.info == general.info and fast.sample_time == general.sample_time == t
+    # and against the reference (scipy.signal.cont2discrete)
+    if n:
+        ref = scipy.signal.cont2discrete((a, b, c, d), t, method="zoh")
+        assert max_rel(fast.a, ref[0]) < 1e-13 and max_rel(fast.b, ref[1]) < 1e-13
+
+
+def test_fast_path_leaves_other_inputs_to_the_general_path():
+    a, b, c, d = random_model(3, 3, 2, 2)
+    ref = sw.to_discrete(a, b, c, d, 0.25)
+    # Fortran order, a numpy float sample time, a big-endian array: the same bits
+    for args in [
+        (np.asfortranarray(a), b, c, d, 0.25),
+        (a, b, c, d, np.float64(0.25)),
+        (a.astype(">f8"), b, c, d, 0.25),
+    ]:
+        r = sw.to_discrete(*args)
+        assert r.a.tobytes() == ref.a.tobytes() and r.b.tobytes() == ref.b.tobytes()
+    r = sw.to_discrete(a, b, c, d, 1)
+    assert r.sample_time == 1
+    # the outputs are fresh, read-only arrays: the input is not touched
+    assert not r.a.flags.writeable and not np.shares_memory(r.a, a)
+    # bad input keeps the general path's messages, naming the argument
+    bad_a = a.copy()
+    bad_a[1, 1] = np.nan
+    with pytest.raises(sw.ModelError, match="^a: "):
+        sw.to_discrete(bad_a, b, c, d, 0.25)
+    with pytest.raises(sw.ModelError, match="sample_time"):
+        sw.to_discrete(a, b, c, d, -0.25)
+    with pytest.raises(sw.ModelError, match="^b: "):
+        sw.to_discrete(a, b[:2], c, d, 0.25)
+    with pytest.raises(sw.ModelError, match="method"):
+        sw.to_discrete(a, b, c, d, 0.25, method="zero order hold")

@@ -10,6 +10,7 @@ from typing import Any, Optional, Tuple
 
 import numpy as np
 
+from .. import _core
 from .._base import time_base as tb
 from .._base import validate as v
 from .._compute import time as compute
@@ -130,6 +131,13 @@ def to_discrete(
     >>> r.sample_time
     0.5
     """
+    if exact is False and prewarp_frequency is None:
+        # The commonest call (a small model as float64 arrays, a float sample time, the
+        # zero-order hold): checked and converted in one core call; None for anything
+        # else, which then takes the paths below (same core routine, same messages).
+        plain = _core.zero_order_hold_plain(a, b, c, d, sample_time, method)
+        if plain is not None:
+            return Realization._from_core(*plain, sample_time)
     if (
         exact is False
         and prewarp_frequency is None
