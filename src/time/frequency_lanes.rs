@@ -30,7 +30,9 @@
 //! factor at most n): backward stable. `c̃ᵀ U⁻¹` by columns is forward substitution with
 //! Uᵀ, backward stable as the back substitution it replaces. A lane is flagged at a pole
 //! when a pivot's modulus is at or below its tolerance (`n eps (‖H‖₁ + |s|)`, given by the
-//! caller); the pivot moduli and the complex reciprocals are computed with scaling, so no
+//! caller). One more accumulator row solves `w U = e` with `e_k` of modulus at most 1
+//! chosen along the running sum (LINPACK's condition estimator), and `max_k |w_k|` is
+//! returned in [`LaneWork::growth`] for the caller's condition test; the pivot moduli and the complex reciprocals are computed with scaling, so no
 //! intermediate under- or overflows for representable pivots.
 //!
 //! # References
@@ -324,6 +326,9 @@ pub(super) struct LaneWork {
     /// `C̃ (sI − H)⁻¹ B̃`, entry q·m + r.
     pub g_re: Vec<Lane>,
     pub g_im: Vec<Lane>,
+    /// `max_k |w_k|` (|re| + |im|) of the condition estimator `w U = e`: a lower bound of
+    /// `‖U⁻¹‖₁` up to a factor 2.
+    pub growth: Lane,
 }
 
 impl LaneWork {
@@ -332,14 +337,16 @@ impl LaneWork {
         LaneWork {
             cur_re: v(n),
             cur_im: v(n),
-            acc_re: v(n * p),
-            acc_im: v(n * p),
+            // One accumulator row per output and one for the condition estimator.
+            acc_re: v(n * (p + 1)),
+            acc_im: v(n * (p + 1)),
             rhs_re: v(m),
             rhs_im: v(m),
-            z_re: v(p),
-            z_im: v(p),
+            z_re: v(p + 1),
+            z_im: v(p + 1),
             g_re: v(p * m),
             g_im: v(p * m),
+            growth: [0.0; MAX_LANES],
         }
     }
 }
@@ -458,6 +465,26 @@ fn pivot_step<V: Lanes>(
         (xr * ir - xi * ii).store(&mut w.z_re[q]);
         (xr * ii + xi * ir).store(&mut w.z_im[q]);
     }
+    // The estimator row (row p): e_k of modulus at most 1 along acc[k], so that
+    // |e_k + acc[k]| = |e_k| + |acc[k]| (the growth-seeking choice of the LINPACK estimator).
+    {
+        let (xr, xi) = (V::load(&w.acc_re[p * n + k]), V::load(&w.acc_im[p * n + k]));
+        let size = xr.abs() + xi.abs();
+        let along = size.gt(zero);
+        let (xr, xi) = (
+            xr + V::select(along, xr.div(size), one),
+            xi + V::select(along, xi.div(size), zero),
+        );
+        let (er, ei) = (xr * ir - xi * ii, xr * ii + xi * ir);
+        er.store(&mut w.z_re[p]);
+        ei.store(&mut w.z_im[p]);
+        // A NaN |w_k| (overflow on the way) counts as infinite growth.
+        let infinite = V::splat(f64::INFINITY);
+        let g = er.abs() + ei.abs();
+        let g = V::select(g.le(infinite), g, infinite);
+        let old = V::load(&w.growth);
+        V::select(g.le(old), old, g).store(&mut w.growth);
+    }
     // y_r[k], the next right-hand sides, G += z y.
     for r in 0..m {
         let next = V::splat(if last { 0.0 } else { b[r * n + k + 1] });
@@ -494,6 +521,7 @@ fn solve<V: Lanes>(
     for g in w.g_re.iter_mut().chain(w.g_im.iter_mut()) {
         *g = [0.0; MAX_LANES];
     }
+    w.growth = [0.0; MAX_LANES];
     if n > 0 {
         // Row 0 of sI − H, the accumulators c̃_q, the right-hand sides (row 0 of B̃).
         for j in 0..n {
@@ -503,6 +531,10 @@ fn solve<V: Lanes>(
         }
         for x in 0..p * n {
             V::splat(c[x]).store(&mut w.acc_re[x]);
+            zero.store(&mut w.acc_im[x]);
+        }
+        for x in p * n..(p + 1) * n {
+            zero.store(&mut w.acc_re[x]);
             zero.store(&mut w.acc_im[x]);
         }
         for r in 0..m {
@@ -523,6 +555,7 @@ fn solve<V: Lanes>(
             // column with the values held in registers. Each value sees the same
             // operations in the same order as in two separate passes.
             let (zr, zi) = (V::load(&w.z_re[0]), V::load(&w.z_im[0]));
+            let (vr, vi) = (V::load(&w.z_re[1]), V::load(&w.z_im[1]));
             {
                 let (cr, ci) = (V::load(&w.cur_re[k + 1]), V::load(&w.cur_im[k + 1]));
                 let (xr, xi) = (V::splat(-row[0]) + sr, si);
@@ -532,25 +565,34 @@ fn solve<V: Lanes>(
                 let (nr, ni) = minus_product(ar, ai, zr, zi, er, ei);
                 nr.store(&mut w.acc_re[k + 1]);
                 ni.store(&mut w.acc_im[k + 1]);
+                let (ar, ai) = (V::load(&w.acc_re[n + k + 1]), V::load(&w.acc_im[n + k + 1]));
+                let (nr, ni) = minus_product(ar, ai, vr, vi, er, ei);
+                nr.store(&mut w.acc_re[n + k + 1]);
+                ni.store(&mut w.acc_im[n + k + 1]);
                 let (nr, ni) = minus_product(fr, fi, lr, li, er, ei);
                 nr.store(&mut w.cur_re[k + 1]);
                 ni.store(&mut w.cur_im[k + 1]);
             }
             let (sw2, lr2, li2) = pivot_step(model, k + 1, tl, &mut failed, w);
             let (zr2, zi2) = (V::load(&w.z_re[0]), V::load(&w.z_im[0]));
+            let (vr2, vi2) = (V::load(&w.z_re[1]), V::load(&w.z_im[1]));
             let row2 = &h[(k + 2) * n + k + 2..(k + 3) * n];
+            let (acc_re, est_re) = w.acc_re.split_at_mut(n);
+            let (acc_im, est_im) = w.acc_im.split_at_mut(n);
             let columns = row[1..]
                 .iter()
                 .zip(row2)
                 .zip(w.cur_re[k + 2..n].iter_mut().zip(&mut w.cur_im[k + 2..n]))
-                .zip(w.acc_re[k + 2..n].iter_mut().zip(&mut w.acc_im[k + 2..n]));
-            for (j, (((&h1, &h2), (cre, cim)), (are, aim))) in columns.enumerate() {
+                .zip(acc_re[k + 2..].iter_mut().zip(&mut acc_im[k + 2..]))
+                .zip(est_re[k + 2..].iter_mut().zip(&mut est_im[k + 2..]));
+            for (j, ((((&h1, &h2), (cre, cim)), (are, aim)), (vre, vim))) in columns.enumerate() {
                 let (cr, ci) = (V::load(cre), V::load(cim));
                 // Step k: row k + 1 of sI − H is real here.
                 let x = V::splat(-h1);
                 let (er, ei) = (V::select(sw, x, cr), V::select(sw, zero, ci));
                 let (fr, fi) = (V::select(sw, cr, x), V::select(sw, ci, zero));
                 let (ar, ai) = minus_product(V::load(are), V::load(aim), zr, zi, er, ei);
+                let (tr, ti) = minus_product(V::load(vre), V::load(vim), vr, vi, er, ei);
                 let (cr, ci) = minus_product(fr, fi, lr, li, er, ei);
                 // Step k + 1: row k + 2 of sI − H, complex on its diagonal (j = 0).
                 let (xr, xi) = if j == 0 {
@@ -563,6 +605,9 @@ fn solve<V: Lanes>(
                 let (ar, ai) = minus_product(ar, ai, zr2, zi2, er, ei);
                 ar.store(are);
                 ai.store(aim);
+                let (tr, ti) = minus_product(tr, ti, vr2, vi2, er, ei);
+                tr.store(vre);
+                ti.store(vim);
                 let (cr, ci) = minus_product(fr, fi, lr2, li2, er, ei);
                 cr.store(cre);
                 ci.store(cim);
@@ -570,11 +615,11 @@ fn solve<V: Lanes>(
             k += 2;
             continue;
         }
-        // Output by output; the rows are eliminated in the last pass, after every
-        // accumulator has taken the pivot row.
-        for q in 0..p {
+        // Output by output, then the estimator row; the rows are eliminated in that last
+        // pass, after every accumulator has taken the pivot row.
+        for q in 0..=p {
             let (zr, zi) = (V::load(&w.z_re[q]), V::load(&w.z_im[q]));
-            let eliminate = q + 1 == p;
+            let eliminate = q == p;
             let acc_re = &mut w.acc_re[q * n + k + 1..(q + 1) * n];
             let acc_im = &mut w.acc_im[q * n + k + 1..(q + 1) * n];
             let cur_re = &mut w.cur_re[k + 1..n];
@@ -618,75 +663,83 @@ mod tests {
     fn every_instruction_set_gives_the_same_bits() {
         // The scalar path against the AVX2 and AVX-512 ones where the CPU has them
         // (identity: the same correctly rounded operations per lane).
-        let (n, m, p): (usize, usize, usize) = (9, 2, 2);
-        let mut seed = 3u64;
-        let mut next = || {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            ((seed >> 11) as f64 / (1u64 << 53) as f64) - 0.5
-        };
-        let mut h: Vec<f64> = (0..n * n).map(|_| next()).collect();
-        for i in 0..n {
-            for j in 0..i.saturating_sub(1) {
-                h[i * n + j] = 0.0;
-            }
-        }
-        let b: Vec<f64> = (0..n * m).map(|_| next()).collect();
-        let c: Vec<f64> = (0..p * n).map(|_| next()).collect();
-        let model = LaneModel {
-            n,
-            m,
-            p,
-            h: &h,
-            b: &b,
-            c: &c,
-        };
-        let s_im: Lane = [0.0, 0.1, 0.3, 1.0, 2.0, 5.0, 20.0, 1e3];
-        let s_re: Lane = [0.0; MAX_LANES];
-        let tol = [1e-14; MAX_LANES];
-        let mut reference = LaneWork::new(n, m, p);
-        for l in 0..MAX_LANES {
-            let one = |x: &Lane| {
-                let mut y = [0.0; MAX_LANES];
-                y[0] = x[l];
-                y
+        // The general path (two outputs) and the paired SISO steps (odd and even n).
+        for (n, m, p) in [(9usize, 2usize, 2usize), (9, 1, 1), (8, 1, 1)] {
+            let mut seed = 3u64;
+            let mut next = || {
+                seed = seed
+                    .wrapping_mul(6364136223846793005)
+                    .wrapping_add(1442695040888963407);
+                ((seed >> 11) as f64 / (1u64 << 53) as f64) - 0.5
             };
-            let mut w = LaneWork::new(n, m, p);
-            let failed = solve::<f64>(&model, &one(&s_re), &one(&s_im), &one(&tol), &mut w);
-            assert!(!failed[0]);
-            for (r, g) in reference.g_re.iter_mut().zip(&w.g_re) {
-                r[l] = g[0];
+            let mut h: Vec<f64> = (0..n * n).map(|_| next()).collect();
+            for i in 0..n {
+                for j in 0..i.saturating_sub(1) {
+                    h[i * n + j] = 0.0;
+                }
             }
-            for (r, g) in reference.g_im.iter_mut().zip(&w.g_im) {
-                r[l] = g[0];
+            let b: Vec<f64> = (0..n * m).map(|_| next()).collect();
+            let c: Vec<f64> = (0..p * n).map(|_| next()).collect();
+            let model = LaneModel {
+                n,
+                m,
+                p,
+                h: &h,
+                b: &b,
+                c: &c,
+            };
+            let s_im: Lane = [0.0, 0.1, 0.3, 1.0, 2.0, 5.0, 20.0, 1e3];
+            let s_re: Lane = [0.0; MAX_LANES];
+            let tol = [1e-14; MAX_LANES];
+            let mut reference = LaneWork::new(n, m, p);
+            let mut growth = [0.0; MAX_LANES];
+            for l in 0..MAX_LANES {
+                let one = |x: &Lane| {
+                    let mut y = [0.0; MAX_LANES];
+                    y[0] = x[l];
+                    y
+                };
+                let mut w = LaneWork::new(n, m, p);
+                let failed = solve::<f64>(&model, &one(&s_re), &one(&s_im), &one(&tol), &mut w);
+                assert!(!failed[0]);
+                growth[l] = w.growth[0];
+                for (r, g) in reference.g_re.iter_mut().zip(&w.g_re) {
+                    r[l] = g[0];
+                }
+                for (r, g) in reference.g_im.iter_mut().zip(&w.g_im) {
+                    r[l] = g[0];
+                }
             }
-        }
-        #[cfg(target_arch = "x86_64")]
-        {
-            let mut w = LaneWork::new(n, m, p);
-            if std::arch::is_x86_feature_detected!("avx512f") {
-                // SAFETY: the CPU supports AVX-512F (checked just above).
-                unsafe { solve_avx512(&model, &s_re, &s_im, &tol, &mut w) };
-                assert_eq!((&w.g_re, &w.g_im), (&reference.g_re, &reference.g_im));
-            }
-            if std::arch::is_x86_feature_detected!("avx2")
-                && std::arch::is_x86_feature_detected!("fma")
+            #[cfg(target_arch = "x86_64")]
             {
                 let mut w = LaneWork::new(n, m, p);
-                for half in 0..2 {
-                    let part = |x: &Lane| {
-                        let mut y = [0.0; MAX_LANES];
-                        y[..4].copy_from_slice(&x[half * 4..half * 4 + 4]);
-                        y
-                    };
-                    // SAFETY: the CPU supports AVX2 and FMA (checked just above).
-                    unsafe { solve_avx2(&model, &part(&s_re), &part(&s_im), &part(&tol), &mut w) };
-                    for (r, g) in reference.g_re.iter().zip(&w.g_re) {
-                        assert_eq!(r[half * 4..half * 4 + 4], g[..4]);
-                    }
-                    for (r, g) in reference.g_im.iter().zip(&w.g_im) {
-                        assert_eq!(r[half * 4..half * 4 + 4], g[..4]);
+                if std::arch::is_x86_feature_detected!("avx512f") {
+                    // SAFETY: the CPU supports AVX-512F (checked just above).
+                    unsafe { solve_avx512(&model, &s_re, &s_im, &tol, &mut w) };
+                    assert_eq!((&w.g_re, &w.g_im), (&reference.g_re, &reference.g_im));
+                    assert_eq!(w.growth, growth);
+                }
+                if std::arch::is_x86_feature_detected!("avx2")
+                    && std::arch::is_x86_feature_detected!("fma")
+                {
+                    let mut w = LaneWork::new(n, m, p);
+                    for half in 0..2 {
+                        let part = |x: &Lane| {
+                            let mut y = [0.0; MAX_LANES];
+                            y[..4].copy_from_slice(&x[half * 4..half * 4 + 4]);
+                            y
+                        };
+                        // SAFETY: the CPU supports AVX2 and FMA (checked just above).
+                        unsafe {
+                            solve_avx2(&model, &part(&s_re), &part(&s_im), &part(&tol), &mut w)
+                        };
+                        for (r, g) in reference.g_re.iter().zip(&w.g_re) {
+                            assert_eq!(r[half * 4..half * 4 + 4], g[..4]);
+                        }
+                        for (r, g) in reference.g_im.iter().zip(&w.g_im) {
+                            assert_eq!(r[half * 4..half * 4 + 4], g[..4]);
+                        }
+                        assert_eq!(growth[half * 4..half * 4 + 4], w.growth[..4]);
                     }
                 }
             }

@@ -209,3 +209,37 @@ def test_singular_to_working_precision_is_refused_not_answered():
     a = q @ (-np.eye(n) + np.diag(np.full(n - 1, 20.0), 1)) @ q.T
     with pytest.raises(sw.ModelError, match=r"frequencies\[0\]"):
         sw.frequency_response(a, np.ones((n, 1)), np.ones((1, n)), np.zeros((1, 1)), [0.01])
+
+
+@pytest.mark.parametrize("outputs, inputs", [(1, 1), (3, 2)])
+def test_refusals_only_where_the_point_is_singular_to_working_precision(outputs, inputs):
+    # The refusal comes from a condition estimate of sI - A (LINPACK's growth-seeking
+    # right-hand side on the triangular factor), a lower bound of cond_1 up to a factor 2
+    # (identity: ||U^-1|| <= ||L|| ||M^-1|| with ||L||_1 <= 2 for a Hessenberg elimination
+    # with partial pivoting) and about 1/eps at the threshold. So a point well inside
+    # 1/eps is answered (and within the backward-error bound, numpy's dense solve as
+    # reference, common practice) and a point beyond about 10/eps is refused.
+    rng = np.random.default_rng(11)
+    n = 14
+    q, _ = np.linalg.qr(rng.standard_normal((n, n)))
+    b, c, d = rng.standard_normal((n, inputs)), rng.standard_normal((outputs, n)), np.zeros((outputs, inputs))
+    eps = np.finfo(float).eps
+    refused = answered = 0
+    for coupling in np.linspace(4.0, 24.0, 41):
+        a = q @ (-np.eye(n) + np.diag(np.full(n - 1, coupling), 1)) @ q.T
+        for wk in (0.01, 1.0):
+            m = 1j * wk * np.eye(n) - a
+            cond = np.linalg.cond(m, 1)
+            try:
+                g = sw.frequency_response(a, b, c, d, [wk])[0]
+            except sw.ModelError as exc:
+                assert "frequencies[0]" in str(exc) and "singular to working precision" in str(exc)
+                assert cond * eps >= 0.5, (coupling, wk, cond)
+                refused += 1
+                continue
+            assert cond * eps <= 10.0, (coupling, wk, cond)
+            x = np.linalg.solve(m, b)
+            err = np.max(np.abs(g - c @ x))
+            assert err <= n * eps * cond * np.linalg.norm(c) * np.linalg.norm(x), (coupling, wk)
+            answered += 1
+    assert refused > 10 and answered > 10
