@@ -115,6 +115,23 @@ pub fn eigenvalues(s: &RealSchur) -> Vec<(f64, f64)> {
 }
 
 /// Refuses an unstable model, naming the offending eigenvalue.
+/// The conditioning of the Gramians with respect to relative perturbations of the poles:
+/// `max_i |λ_i| / |Re λ_i|` (continuous time; the Gramian of one mode is proportional to
+/// `1 / |Re λ|`) or `max_i 1 / (1 − |λ_i|²)` (discrete time, likewise `1 / (1 − |λ|²)`),
+/// at least 1. Lightly damped modes and poles near the unit circle make it large.
+pub fn pole_conditioning(s: &RealSchur, discrete: bool) -> f64 {
+    eigenvalues(s)
+        .into_iter()
+        .map(|(re, im)| {
+            if discrete {
+                1.0 / (1.0 - re.hypot(im).powi(2))
+            } else {
+                re.hypot(im) / re.abs()
+            }
+        })
+        .fold(1.0, f64::max)
+}
+
 pub fn check_stable(s: &RealSchur, discrete: bool) -> Result<()> {
     for (re, im) in eigenvalues(s) {
         let bad = if discrete {
