@@ -9,6 +9,7 @@
 //! Reference: B. N. Parlett and C. Reinsch, "Balancing a matrix for calculation of
 //! eigenvalues and eigenvectors", Numer. Math. 13 (1969).
 
+use crate::error::{ModelError, Result};
 use crate::matrix::Matrix;
 use crate::state_space::StateSpace;
 
@@ -76,14 +77,7 @@ pub fn balance_model(ss: &StateSpace<f64>) -> (StateSpace<f64>, Vec<f64>) {
     let (a, scale) = balance(&ss.a);
     let mut b = ss.b.clone();
     let mut c = ss.c.clone();
-    for (i, s) in scale.iter().enumerate() {
-        for j in 0..b.cols() {
-            b.set(i, j, b.get(i, j) / s);
-        }
-        for r in 0..c.rows() {
-            c.set(r, i, c.get(r, i) * s);
-        }
-    }
+    scale_ports_in_place(b.as_mut_slice(), c.as_mut_slice(), &scale);
     if [&a, &b, &c]
         .iter()
         .any(|m| m.as_slice().iter().any(|v| !v.is_finite()))
@@ -99,4 +93,53 @@ pub fn balance_model(ss: &StateSpace<f64>) -> (StateSpace<f64>, Vec<f64>) {
         },
         scale,
     )
+}
+
+/// `S⁻¹ B` and `C S` in place, for the diagonal `scale` of S (B row-major with
+/// `scale.len()` rows, C row-major with `scale.len()` columns; either may be empty).
+pub fn scale_ports_in_place(b: &mut [f64], c: &mut [f64], scale: &[f64]) {
+    let n = scale.len();
+    if n == 0 {
+        return;
+    }
+    // (chunks of zero length are not allowed: a model without inputs has an empty B.)
+    for (row, s) in b.chunks_mut((b.len() / n).max(1)).zip(scale) {
+        row.iter_mut().for_each(|v| *v /= s);
+    }
+    for row in c.chunks_mut(n) {
+        row.iter_mut().zip(scale).for_each(|(v, s)| *v *= s);
+    }
+}
+
+/// Back from balanced coordinates, in place: `S A S⁻¹`, `S B` and `C S⁻¹` (row-major,
+/// shapes as in [`scale_ports_in_place`]; the scalings are exact powers of two). An
+/// overflow names the converted model's matrix.
+pub fn unbalance_in_place(
+    a: &mut [f64],
+    b: &mut [f64],
+    c: &mut [f64],
+    scale: &[f64],
+) -> Result<()> {
+    let n = scale.len();
+    if n > 0 {
+        for (row, &si) in a.chunks_mut(n).zip(scale) {
+            row.iter_mut()
+                .zip(scale)
+                .for_each(|(v, &sj)| *v = *v * si / sj);
+        }
+        for (row, &si) in b.chunks_mut((b.len() / n).max(1)).zip(scale) {
+            row.iter_mut().for_each(|v| *v *= si);
+        }
+        for row in c.chunks_mut(n) {
+            row.iter_mut().zip(scale).for_each(|(v, s)| *v /= s);
+        }
+    }
+    for (arg, x) in [("a", &*a), ("b", &*b), ("c", &*c)] {
+        if !x.iter().all(|v| v.is_finite()) {
+            return Err(ModelError::Overflow {
+                what: format!("the converted model's {arg} in the given state coordinates"),
+            });
+        }
+    }
+    Ok(())
 }

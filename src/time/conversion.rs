@@ -155,24 +155,12 @@ fn in_balanced_coordinates(
     }
     let mut out = convert(&balanced)?;
     let model = &mut out.realization;
-    for (i, &si) in scale.iter().enumerate() {
-        for (j, &sj) in scale.iter().enumerate() {
-            model.a.set(i, j, model.a.get(i, j) * si / sj);
-        }
-        for j in 0..model.b.cols() {
-            model.b.set(i, j, model.b.get(i, j) * si);
-        }
-        for r in 0..model.c.rows() {
-            model.c.set(r, i, model.c.get(r, i) / si);
-        }
-    }
-    for (arg, m) in [("a", &model.a), ("b", &model.b), ("c", &model.c)] {
-        if !m.as_slice().iter().all(|v| v.is_finite()) {
-            return Err(ModelError::Overflow {
-                what: format!("the converted model's {arg} in the given state coordinates"),
-            });
-        }
-    }
+    crate::balance::unbalance_in_place(
+        model.a.as_mut_slice(),
+        model.b.as_mut_slice(),
+        model.c.as_mut_slice(),
+        &scale,
+    )?;
     Ok(out)
 }
 

@@ -129,11 +129,8 @@ fn hold_small<const K: usize>(
     crate::balance::balance_in_place(sa, n, scale);
     let mut sb = [0.0; SMALL * SMALL];
     let sb = &mut sb[..n * m];
-    for (i, s) in scale.iter().enumerate() {
-        for j in 0..m {
-            sb[i * m + j] = b[i * m + j] / s;
-        }
-    }
+    sb.copy_from_slice(b);
+    crate::balance::scale_ports_in_place(sb, &mut [], scale);
     if !sa.iter().chain(sb.iter()).all(|v| v.is_finite()) {
         sa.copy_from_slice(a);
         sb.copy_from_slice(b);
@@ -188,21 +185,11 @@ fn hold_small<const K: usize>(
         return Err(overflow("the zero-order-hold input matrix"));
     }
     // Back to the given state coordinates: S A_d S⁻¹ and S B_d (exact powers of two).
-    for (i, &si) in scale.iter().enumerate() {
-        for (j, &sj) in scale.iter().enumerate() {
-            ad[i * n + j] = value.v[i][j] * si / sj;
-        }
-        for v in &mut bd[i * m..(i + 1) * m] {
-            *v *= si;
-        }
+    let (ad, bd) = (&mut ad[..n * n], &mut bd[..n * m]);
+    for (i, row) in ad.chunks_mut(n.max(1)).enumerate() {
+        row.copy_from_slice(&value.v[i][..n]);
     }
-    for (arg, x) in [("a", &*ad), ("b", &*bd)] {
-        if !x.iter().all(|v| v.is_finite()) {
-            return Err(overflow(&format!(
-                "the converted model's {arg} in the given state coordinates"
-            )));
-        }
-    }
+    crate::balance::unbalance_in_place(ad, bd, &mut [], scale)?;
     Ok((degree, squarings))
 }
 
