@@ -114,7 +114,6 @@ pub fn eigenvalues(s: &RealSchur) -> Vec<(f64, f64)> {
     out
 }
 
-/// Refuses an unstable model, naming the offending eigenvalue.
 /// The conditioning of the Gramians with respect to relative perturbations of the poles:
 /// `max_i |λ_i| / |Re λ_i|` (continuous time; the Gramian of one mode is proportional to
 /// `1 / |Re λ|`) or `max_i 1 / (1 − |λ_i|²)` (discrete time, likewise `1 / (1 − |λ|²)`),
@@ -132,6 +131,7 @@ pub fn pole_conditioning(s: &RealSchur, discrete: bool) -> f64 {
         .fold(1.0, f64::max)
 }
 
+/// Refuses an unstable model, naming the offending eigenvalue.
 pub fn check_stable(s: &RealSchur, discrete: bool) -> Result<()> {
     for (re, im) in eigenvalues(s) {
         let bad = if discrete {

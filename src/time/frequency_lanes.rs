@@ -32,8 +32,9 @@
 //! when a pivot's modulus is at or below its tolerance (`n eps (‖H‖₁ + |s|)`, given by the
 //! caller). One more accumulator row solves `w U = e` with `e_k` of modulus at most 1
 //! chosen along the running sum (LINPACK's condition estimator), and `max_k |w_k|` is
-//! returned in [`LaneWork::growth`] for the caller's condition test; the pivot moduli and the complex reciprocals are computed with scaling, so no
-//! intermediate under- or overflows for representable pivots.
+//! returned in [`LaneWork::growth`] for the caller's condition test. The pivot moduli and
+//! the complex reciprocals are computed with scaling, so no intermediate under- or
+//! overflows for representable pivots.
 //!
 //! # References
 //! J. H. Wilkinson, *The Algebraic Eigenvalue Problem*, 1965 (Gaussian elimination on

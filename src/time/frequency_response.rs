@@ -354,9 +354,10 @@ pub fn failure_error(
         EvaluationFailure::IllConditioned { estimate } => ModelError::BadValue {
             arg: "frequencies",
             detail: format!(
-                "frequencies[{index}] = {w:.6e} rad/s is too close to a pole of the model: sI - A is singular \
-                 to working precision at s = {:.6e}{:+.6e}j (estimated condition number {estimate:.1e}, \
-                 at or beyond 1/eps = {:.1e}), so no digit of the response could be trusted",
+                "frequencies[{index}] = {w:.6e} rad/s: sI - A is singular to working precision at \
+                 s = {:.6e}{:+.6e}j (estimated condition number {estimate:.1e}, at or beyond \
+                 1/eps = {:.1e}: near a pole, or where A is far from normal), so no digit of the \
+                 response could be trusted",
                 point.re,
                 point.im,
                 1.0 / f64::EPSILON

@@ -185,7 +185,6 @@ fn hold_small<const K: usize>(
         return Err(overflow("the zero-order-hold input matrix"));
     }
     // Back to the given state coordinates: S A_d S⁻¹ and S B_d (exact powers of two).
-    let (ad, bd) = (&mut ad[..n * n], &mut bd[..n * m]);
     for (i, row) in ad.chunks_mut(n.max(1)).enumerate() {
         row.copy_from_slice(&value.v[i][..n]);
     }
